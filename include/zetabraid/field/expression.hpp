@@ -1,0 +1,39 @@
+// The exact-expression syntax (documented in README.md, "Exact expressions").
+//
+//   expr   := ['+'|'-'] term { ('+'|'-') term }
+//   term   := factor { ('*'|'/') factor }
+//   factor := ['+'|'-'] power
+//   power  := atom [ '^' integer ]          integer: optionally signed, optionally in parentheses
+//   atom   := integer | 'zeta' | 'i' | 'sqrt(' expr ')' | 'conj(' expr ')' | 'exp(' phase ')' | '(' expr ')'
+//   phase  := a product/quotient/sum whose value is r*pi*i with r rational, e.g. 2*pi*i*3/20
+//
+// 'zeta' is exp(2*pi*i/N). exp(2*pi*i*p/q) is accepted when it lies in Q(zeta_N) (q divides N, or 2N for odd N).
+#pragma once
+#include <string>
+
+#include "zetabraid/error.hpp"
+#include "zetabraid/field/scalar.hpp"
+
+namespace zb {
+
+/// A malformed or unsupported expression; column() is 1-based.
+class ExpressionError : public InputError {
+ public:
+  ExpressionError(const std::string& what, size_t column)
+      : InputError("column " + std::to_string(column) + ": " + what), column_(column) {}
+  size_t column() const { return column_; }
+
+ private:
+  size_t column_;
+};
+
+struct ExpressionLimits {
+  size_t max_length = 1 << 20;  ///< characters
+  int max_depth = 256;          ///< nesting of parentheses and unary operators
+  long max_exponent = 100000;   ///< |e| in x^e
+};
+
+/// Parses and evaluates text in field f. Throws ExpressionError (an InputError) on malformed input.
+Scalar parse_expression(const std::string& text, const FieldPtr& f, const ExpressionLimits& limits = {});
+
+}  // namespace zb

@@ -1,0 +1,66 @@
+// Shared test helpers: running the CLI and PARI/GP, seeded random elements.
+#pragma once
+#include <array>
+#include <cstdio>
+#include <random>
+#include <string>
+#include <sys/wait.h>
+
+#include "zetabraid/field/scalar.hpp"
+
+namespace zbtest {
+
+struct RunResult {
+  int status = -1;
+  std::string out;
+};
+
+/// Runs a shell command, capturing stdout (stderr goes to stdout when merge is set).
+inline RunResult run(const std::string& cmd, bool merge = false) {
+  RunResult r;
+  std::string full = cmd + (merge ? " 2>&1" : " 2>/dev/null");
+  FILE* p = popen(full.c_str(), "r");
+  if (!p) return r;
+  std::array<char, 4096> buf{};
+  size_t n;
+  while ((n = fread(buf.data(), 1, buf.size(), p)) > 0) r.out.append(buf.data(), n);
+  int st = pclose(p);
+  r.status = WIFEXITED(st) ? WEXITSTATUS(st) : -1;
+  return r;
+}
+
+inline std::string cli() { return ZB_CLI; }
+inline std::string source_dir() { return ZB_SOURCE_DIR; }
+inline bool have_gp() { return std::string(ZB_GP).size() > 0 && std::string(ZB_GP).find("NOTFOUND") == std::string::npos; }
+
+/// Runs a GP program (quiet, no colours) and returns its trimmed output.
+inline std::string gp(const std::string& program) {
+  std::string path = "/tmp/zb_test_gp_" + std::to_string(::getpid()) + ".gp";
+  FILE* f = fopen(path.c_str(), "w");
+  fputs(program.c_str(), f);
+  fputs("\nquit\n", f);
+  fclose(f);
+  RunResult r = run(std::string(ZB_GP) + " -q -f --default colors=no " + path);
+  std::remove(path.c_str());
+  while (!r.out.empty() && (r.out.back() == '\n' || r.out.back() == ' ')) r.out.pop_back();
+  return r.out;
+}
+
+/// A random element of Q(zeta_N) with small rational coefficients.
+inline zb::Cyclo random_cyclo(const zb::CyclotomicFieldPtr& k, std::mt19937_64& rng, int bound = 5) {
+  std::uniform_int_distribution<long> c(-bound, bound), d(1, 3);
+  fmpq_poly_t p;
+  fmpq_poly_init(p);
+  fmpq_t q;
+  fmpq_init(q);
+  for (long i = 0; i < k->degree(); ++i) {
+    fmpq_set_si(q, c(rng), static_cast<unsigned long>(d(rng)));
+    fmpq_poly_set_coeff_fmpq(p, i, q);
+  }
+  zb::Cyclo r = zb::Cyclo::from_poly(k, p);
+  fmpq_clear(q);
+  fmpq_poly_clear(p);
+  return r;
+}
+
+}  // namespace zbtest
