@@ -1,0 +1,67 @@
+// An anyon model: labels, fusion rules, F-symbols and (optionally) R-symbols, all exact.
+//
+// Conventions (documented in docs/model-format.md):
+//  * F-symbols, multiplicity-free: for a fusion tree of a, b, c with total charge d,
+//        |(a b -> e) c -> d>  =  sum_f  [F^{abc}_d]_{e f}  |a (b c -> f) -> d>,
+//    i.e. [F^{abc}_d] changes the left-associated basis (rows e) into the right-associated basis (columns f).
+//  * R-symbols: R^{ab}_c is the eigenvalue of the counterclockwise exchange of a and b in the fusion channel c,
+//    mapping V^{ab}_c to V^{ba}_c (for a != b an isomorphism between distinct spaces in a fixed basis).
+//  * Label 0 is the unit ("vacuum").
+// Fusion multiplicities N_{ab}^c are stored as integers so that multiplicities > 1 can be added later (with
+// vertex indices); the F/R accessors below are for the multiplicity-free case and loaders reject N > 1 today.
+#pragma once
+#include <array>
+#include <map>
+#include <optional>
+#include <string>
+#include <unordered_map>
+#include <vector>
+
+#include "zetabraid/field/scalar.hpp"
+
+namespace zb {
+
+struct Model {
+  std::string name;
+  std::string source;        ///< provenance text from the file (paper/formula or generating command)
+  FieldPtr field;            ///< K(sqrt(d_1), ...) containing every value
+  std::vector<std::string> labels;
+  bool claims_unitary = false;
+  bool has_r = false;
+
+  int label_count() const { return static_cast<int>(labels.size()); }
+  /// Index of a label name, or -1.
+  int label_index(const std::string& name) const;
+
+  /// N_{ab}^c.
+  int fusion(int a, int b, int c) const { return fusion_[(static_cast<size_t>(a) * n() + b) * n() + c]; }
+  void set_fusion(int a, int b, int c, int mult);
+  /// Channels c with N_{ab}^c > 0, ascending.
+  std::vector<int> channels(int a, int b) const;
+  /// The dual a* (N_{a a*}^0 = 1), or -1 if none.
+  int dual(int a) const;
+
+  /// [F^{abc}_d]_{ef}; nullptr when not stored (a zero, or not admissible).
+  const Scalar* f_symbol(int a, int b, int c, int d, int e, int f) const;
+  void set_f_symbol(int a, int b, int c, int d, int e, int f, Scalar v);
+  /// R^{ab}_c; nullptr when not stored.
+  const Scalar* r_symbol(int a, int b, int c) const;
+  void set_r_symbol(int a, int b, int c, Scalar v);
+
+  /// All stored F entries (key = {a,b,c,d,e,f}); all stored R entries (key = {a,b,c}).
+  const std::map<std::array<int, 6>, Scalar>& f_symbols() const { return f_; }
+  const std::map<std::array<int, 3>, Scalar>& r_symbols() const { return r_; }
+
+  /// Resizes the fusion table for labels.size() labels (all zero).
+  void init_fusion();
+
+ private:
+  size_t n() const { return labels.size(); }
+  std::vector<int> fusion_;
+  std::map<std::array<int, 6>, Scalar> f_;
+  std::map<std::array<int, 3>, Scalar> r_;
+  // Fast lookup for hot loops (pentagon checks): flattened index -> pointer into f_.
+  std::unordered_map<std::uint64_t, const Scalar*> f_index_;
+};
+
+}  // namespace zb

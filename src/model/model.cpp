@@ -1,0 +1,60 @@
+#include "zetabraid/model/model.hpp"
+
+#include "zetabraid/error.hpp"
+
+namespace zb {
+
+namespace {
+std::uint64_t key6(int a, int b, int c, int d, int e, int f) {
+  std::uint64_t k = 0;
+  for (int v : {a, b, c, d, e, f}) k = (k << 10) | static_cast<std::uint64_t>(v);
+  return k;
+}
+}  // namespace
+
+int Model::label_index(const std::string& name) const {
+  for (size_t i = 0; i < labels.size(); ++i)
+    if (labels[i] == name) return static_cast<int>(i);
+  return -1;
+}
+
+void Model::init_fusion() { fusion_.assign(n() * n() * n(), 0); }
+
+void Model::set_fusion(int a, int b, int c, int mult) {
+  if (fusion_.size() != n() * n() * n()) init_fusion();
+  fusion_[(static_cast<size_t>(a) * n() + b) * n() + c] = mult;
+}
+
+std::vector<int> Model::channels(int a, int b) const {
+  std::vector<int> out;
+  for (int c = 0; c < label_count(); ++c)
+    if (fusion(a, b, c) > 0) out.push_back(c);
+  return out;
+}
+
+int Model::dual(int a) const {
+  for (int b = 0; b < label_count(); ++b)
+    if (fusion(a, b, 0) > 0) return b;
+  return -1;
+}
+
+const Scalar* Model::f_symbol(int a, int b, int c, int d, int e, int f) const {
+  auto it = f_index_.find(key6(a, b, c, d, e, f));
+  return it == f_index_.end() ? nullptr : it->second;
+}
+
+void Model::set_f_symbol(int a, int b, int c, int d, int e, int f, Scalar v) {
+  if (label_count() > 1000) throw ResourceError("more than 1000 labels");
+  auto [it, inserted] = f_.insert_or_assign({a, b, c, d, e, f}, std::move(v));
+  f_index_[key6(a, b, c, d, e, f)] = &it->second;
+  (void)inserted;
+}
+
+const Scalar* Model::r_symbol(int a, int b, int c) const {
+  auto it = r_.find({a, b, c});
+  return it == r_.end() ? nullptr : &it->second;
+}
+
+void Model::set_r_symbol(int a, int b, int c, Scalar v) { r_.insert_or_assign({a, b, c}, std::move(v)); }
+
+}  // namespace zb
