@@ -1,6 +1,8 @@
 // Shared test helpers: running the CLI and PARI/GP, seeded random elements.
 #pragma once
 #include <array>
+#include <sstream>
+#include <unistd.h>
 #include <cstdio>
 #include <random>
 #include <string>
