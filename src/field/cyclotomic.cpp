@@ -84,7 +84,10 @@ Cyclo::Cyclo(const Cyclo& o) : k_(o.k_) {
   nf_elem_init(v_, k_->nf());
   nf_elem_set(v_, o.v_, k_->nf());
 }
-Cyclo::Cyclo(Cyclo&& o) noexcept : Cyclo(o) {}  // nf_elem has no cheap move; deep copy keeps o valid
+Cyclo::Cyclo(Cyclo&& o) noexcept : k_(o.k_) {
+  nf_elem_init(v_, k_->nf());  // o keeps a valid (zero) value
+  nf_elem_swap(v_, o.v_, k_->nf());
+}
 Cyclo& Cyclo::operator=(const Cyclo& o) {
   if (this == &o) return *this;
   if (k_ != o.k_) {

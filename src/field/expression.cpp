@@ -100,8 +100,9 @@ struct Phase {
 
 class Parser {
  public:
-  Parser(const std::string& text, const FieldPtr& f, const ExpressionLimits& lim)
-      : toks_(tokenize(text)), f_(f), lim_(lim) {}
+  Parser(const std::string& text, const FieldPtr& f, const ExpressionLimits& lim,
+         const std::map<std::string, Scalar>* names = nullptr)
+      : toks_(tokenize(text)), f_(f), lim_(lim), names_(names) {}
 
   Scalar parse_all() {
     Scalar v = expr();
@@ -257,6 +258,13 @@ class Parser {
           return root_of_unity(ph, col);
         }
         if (t.text == "pi") fail("pi is only allowed inside exp(...), as in exp(2*pi*i/5)");
+        if (names_) {
+          auto it = names_->find(t.text);
+          if (it != names_->end()) {
+            next();
+            return it->second;
+          }
+        }
         fail(fmt::format("unknown name '{}'; expected zeta, i, sqrt, conj or exp", t.text));
       }
       default:
@@ -372,14 +380,21 @@ class Parser {
   FieldPtr f_;
   ExpressionLimits lim_;
   int depth_ = 0;
+  const std::map<std::string, Scalar>* names_ = nullptr;
 };
 
 }  // namespace
 
 Scalar parse_expression(const std::string& text, const FieldPtr& f, const ExpressionLimits& limits) {
+  static const std::map<std::string, Scalar> none;
+  return parse_expression(text, f, none, limits);
+}
+
+Scalar parse_expression(const std::string& text, const FieldPtr& f, const std::map<std::string, Scalar>& names,
+                        const ExpressionLimits& limits) {
   if (text.size() > limits.max_length)
     throw ExpressionError(fmt::format("expression longer than {} characters", limits.max_length), 1);
-  Parser p(text, f, limits);
+  Parser p(text, f, limits, names.empty() ? nullptr : &names);
   try {
     return p.parse_all();
   } catch (const ExpressionError&) {

@@ -12,7 +12,18 @@ namespace zb {
 // ---------------- Field ----------------
 
 FieldPtr Field::make(unsigned long conductor) { return make(CyclotomicField::make(conductor)); }
-FieldPtr Field::make(CyclotomicFieldPtr k) { return FieldPtr(new Field(std::move(k))); }
+FieldPtr Field::make(CyclotomicFieldPtr k) {
+  FieldPtr f(new Field(std::move(k)));
+  f->witnesses_ = std::make_unique<WitnessList>(f->k_->conductor());
+  return f;
+}
+
+const std::vector<signed char>& Field::radicand_symbols(int j, size_t count) {
+  if (symbols_.size() < radicands_.size()) symbols_.resize(radicands_.size());
+  auto& v = symbols_[static_cast<size_t>(j)];
+  while (v.size() < count) v.push_back(static_cast<signed char>(legendre_at(radicands_[static_cast<size_t>(j)], witnesses_->at(v.size()))));
+  return v;
+}
 
 const Cyclo& Field::radicand_product(RadicalMask s) const {
   std::lock_guard<std::mutex> lock(mu_);
@@ -42,15 +53,48 @@ struct BitVec {
   bool zero_somewhere = false;
 };
 
-BitVec legendre_vector(const Cyclo& x, WitnessList& wl, size_t count) {
-  BitVec v;
-  v.b.resize(count);
-  for (size_t i = 0; i < count; ++i) {
-    int l = legendre_at(x, wl.at(i));
-    if (l == 0) v.zero_somewhere = true;
-    v.b[i] = l == -1 ? 1 : 0;
+// Re-reads a cached coefficient string (produced by Cyclo::str) in x's field.
+Cyclo parse_cyclo_cached(const std::string& s, const Cyclo& like) {
+  // Cached results are stored as power-basis coefficient lists "c0;c1;..." to avoid re-parsing expressions.
+  fmpq_poly_t p;
+  fmpq_poly_init(p);
+  fmpq_t q;
+  fmpq_init(q);
+  size_t start = 0;
+  long k = 0;
+  while (start <= s.size()) {
+    size_t end = s.find(';', start);
+    if (end == std::string::npos) end = s.size();
+    std::string part = s.substr(start, end - start);
+    if (!part.empty()) {
+      fmpq_set_str(q, part.c_str(), 10);
+      fmpq_poly_set_coeff_fmpq(p, k, q);
+    }
+    ++k;
+    start = end + 1;
   }
-  return v;
+  Cyclo c = Cyclo::from_poly(like.field(), p);
+  fmpq_clear(q);
+  fmpq_poly_clear(p);
+  return c;
+}
+
+std::string coeff_string(const Cyclo& c) {
+  fmpq_poly_t p;
+  fmpq_poly_init(p);
+  c.get_poly(p);
+  fmpq_t q;
+  fmpq_init(q);
+  std::string s;
+  for (long k = 0; k < fmpq_poly_length(p); ++k) {
+    fmpq_poly_get_coeff_fmpq(q, p, k);
+    char* cs = fmpq_get_str(nullptr, 10, q);
+    s += (k ? ";" : "") + std::string(cs);
+    flint_free(cs);
+  }
+  fmpq_clear(q);
+  fmpq_poly_clear(p);
+  return s;
 }
 
 // Solves target = sum_{j in S} vecs[j] over F_2.
@@ -108,18 +152,43 @@ Scalar Field::sqrt(const Cyclo& x) {
     return Scalar(self, s0) * sqrt(x / (s0 * s0));
   }
   std::lock_guard<std::mutex> guard(grow_mu_);
-  WitnessList wl(k_->conductor());
+  std::string key = coeff_string(x);
+  auto hit = sqrt_cache_.find(key);
+  if (hit != sqrt_cache_.end()) {
+    Scalar r(self);
+    for (const auto& [m, c] : hit->second) r += Scalar::monomial(self, parse_cyclo_cached(c, x), m);
+    return r;
+  }
+  Scalar r = sqrt_uncached(x);
+  std::vector<std::pair<RadicalMask, std::string>> terms;
+  for (const auto& [m, c] : r.terms()) terms.emplace_back(m, coeff_string(c));
+  sqrt_cache_.emplace(key, std::move(terms));
+  return r;
+}
+
+Scalar Field::sqrt_uncached(const Cyclo& x) {
+  auto self = shared_from_this();
+  WitnessList& wl = *witnesses_;
   // Legendre vectors at degree-one primes. Positions where any symbol is 0 are dropped for everyone, so at every
   // kept position the symbols are multiplicative: ( x d_S | P ) = ( x | P ) prod_{j in S} ( d_j | P ).
   for (size_t count = 64; count <= 4096; count *= 2) {
-    std::vector<BitVec> vecs;
-    for (const Cyclo& d : radicands_) vecs.push_back(legendre_vector(d, wl, count));
-    BitVec tv = legendre_vector(x, wl, count);
+    std::vector<BitVec> vecs(radicands_.size());
     std::vector<std::uint8_t> keep(count, 1);
+    for (int j = 0; j < radicand_count(); ++j) {
+      const auto& sym = radicand_symbols(j, count);
+      auto& v = vecs[static_cast<size_t>(j)].b;
+      v.resize(count);
+      for (size_t i = 0; i < count; ++i) {
+        v[i] = sym[i] == -1;
+        if (sym[i] == 0) keep[i] = 0;
+      }
+    }
+    BitVec tv;
+    tv.b.resize(count);
     for (size_t i = 0; i < count; ++i) {
-      bool zero = legendre_at(x, wl.at(i)) == 0;
-      for (const Cyclo& d : radicands_) zero |= legendre_at(d, wl.at(i)) == 0;
-      keep[i] = !zero;
+      int l = legendre_at(x, wl.at(i));
+      tv.b[i] = l == -1;
+      if (l == 0) keep[i] = 0;
     }
     for (size_t i = 0; i < count; ++i)
       if (!keep[i]) {

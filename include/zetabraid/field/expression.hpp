@@ -9,6 +9,7 @@
 //
 // 'zeta' is exp(2*pi*i/N). exp(2*pi*i*p/q) is accepted when it lies in Q(zeta_N) (q divides N, or 2N for odd N).
 #pragma once
+#include <map>
 #include <string>
 
 #include "zetabraid/error.hpp"
@@ -35,5 +36,10 @@ struct ExpressionLimits {
 
 /// Parses and evaluates text in field f. Throws ExpressionError (an InputError) on malformed input.
 Scalar parse_expression(const std::string& text, const FieldPtr& f, const ExpressionLimits& limits = {});
+
+/// As above, with named constants: an identifier that is not built in (zeta, i, sqrt, conj, exp, pi) is looked
+/// up in names (values must belong to f). Used by the model loader for declared square roots and constants.
+Scalar parse_expression(const std::string& text, const FieldPtr& f, const std::map<std::string, Scalar>& names,
+                        const ExpressionLimits& limits = {});
 
 }  // namespace zb

@@ -10,6 +10,7 @@
 #include <cstdint>
 #include <map>
 #include <memory>
+#include <utility>
 #include <mutex>
 #include <string>
 #include <vector>
@@ -17,6 +18,7 @@
 #include <numeric>
 
 #include "zetabraid/field/cyclotomic.hpp"
+#include "zetabraid/field/square_test.hpp"
 
 namespace zb {
 
@@ -66,6 +68,12 @@ class Field : public std::enable_shared_from_this<Field> {
 
  private:
   bool frozen_ = false;
+  Scalar sqrt_uncached(const Cyclo& x);
+  /// Legendre symbols of radicand j at witnesses 0..count-1 (cached, extended on demand).
+  const std::vector<signed char>& radicand_symbols(int j, size_t count);
+  std::unique_ptr<WitnessList> witnesses_;
+  std::vector<std::vector<signed char>> symbols_;
+  std::map<std::string, std::vector<std::pair<RadicalMask, std::string>>> sqrt_cache_;  // x.str() -> result terms
 };
 
 /// An element of a Field. Value type.
