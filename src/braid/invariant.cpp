@@ -1,0 +1,98 @@
+#include "zetabraid/braid/invariant.hpp"
+
+#include <fmt/format.h>
+
+#include <cstdlib>
+#include <numeric>
+
+#include "zetabraid/error.hpp"
+#include "zetabraid/linalg/word_product.hpp"
+
+namespace zb {
+
+Scalar quantum_dimension(const Model& model, int a) {
+  if (a == 0) return Scalar(model.field, 1);
+  int ad = model.dual(a);
+  if (ad < 0) throw MathError(fmt::format("label {} has no dual", model.labels[a]));
+  const Scalar* f = model.f_symbol(a, ad, a, a, 0, 0);
+  if (!f || f->is_zero())
+    throw MathError(fmt::format("[F^{{{} {} {}}}_{}]_{{0 0}} is missing or zero", model.labels[a], model.labels[ad],
+                                model.labels[a], model.labels[a]));
+  Scalar inv = f->inverse();
+  if (!model.claims_unitary) return inv;
+  // |1/f| = sqrt(inv * conj(inv)); for a real inv this is sign(inv) * inv
+  if (inv.is_real()) return inv.real_sign() < 0 ? -inv : inv;
+  Scalar n2 = inv.abs2();
+  if (!n2.in_base()) throw MathError("quantum dimension: |F|^2 is not in the base field");
+  return model.field->sqrt(n2.to_base());
+}
+
+Scalar twist(const Model& model, int a) {
+  Scalar s(model.field);
+  for (int c : model.channels(a, a)) {
+    const Scalar* r = model.r_symbol(a, a, c);
+    if (!r) throw MathError(fmt::format("missing R^{{{} {}}}_{}", model.labels[a], model.labels[a], model.labels[c]));
+    s += quantum_dimension(model, c) * *r;
+  }
+  return s / quantum_dimension(model, a);
+}
+
+LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands, const Word& w) {
+  const int n = static_cast<int>(strands.size());
+  w.check_range(n);
+  // follow strands: pos[k] = strand at position k
+  std::vector<int> pos(static_cast<size_t>(n));
+  std::iota(pos.begin(), pos.end(), 0);
+  std::vector<std::pair<int, int>> crossings;  // strands crossing at each letter
+  for (int l : w.letters) {
+    size_t i = static_cast<size_t>(std::abs(l));
+    crossings.emplace_back(pos[i - 1], pos[i]);
+    std::swap(pos[i - 1], pos[i]);
+  }
+  // permutation: strand pos[k] ends at position k; the closure joins the top of position k to the bottom of k
+  std::vector<int> next(static_cast<size_t>(n));
+  for (int k = 0; k < n; ++k) next[static_cast<size_t>(pos[static_cast<size_t>(k)])] = k;
+  std::vector<int> comp(static_cast<size_t>(n), -1);
+  int nc = 0;
+  for (int s = 0; s < n; ++s) {
+    if (comp[static_cast<size_t>(s)] >= 0) continue;
+    for (int t = s; comp[static_cast<size_t>(t)] < 0; t = next[static_cast<size_t>(t)]) comp[static_cast<size_t>(t)] = nc;
+    ++nc;
+  }
+  for (int s = 0; s < n; ++s)
+    if (strands[static_cast<size_t>(s)] != strands[static_cast<size_t>(next[static_cast<size_t>(s)])])
+      throw InputError("the braid closure joins strands of different anyon types: the word must return every label "
+                       "to its position");
+  LinkInvariant out{Scalar(model.field), Scalar(model.field), nc, std::vector<long>(static_cast<size_t>(nc), 0)};
+  for (size_t k = 0; k < w.size(); ++k) {
+    auto [x, y] = crossings[k];
+    if (comp[static_cast<size_t>(x)] == comp[static_cast<size_t>(y)])
+      out.self_writhe[static_cast<size_t>(comp[static_cast<size_t>(x)])] += w.letters[k] > 0 ? 1 : -1;
+  }
+  for (int c = 0; c < model.label_count(); ++c) {
+    BraidGenerators gens(model, c);
+    const FusionSpace& sp = gens.space(strands);
+    if (sp.dimension() == 0) continue;
+    Scalar tr(model.field);
+    if (w.size() == 0) {
+      tr = Scalar(model.field, static_cast<long>(sp.dimension()));
+    } else {
+      std::vector<const Matrix*> letters = gens.letters(strands, w);
+      tr = word_product(letters).trace();
+    }
+    out.quantum_trace += quantum_dimension(model, c) * tr;
+  }
+  Scalar corr(model.field, 1);
+  for (int s = 0; s < n; ++s) {
+    // one representative strand per component
+    int k = comp[static_cast<size_t>(s)];
+    bool first = true;
+    for (int t = 0; t < s; ++t) first = first && comp[static_cast<size_t>(t)] != k;
+    if (!first) continue;
+    corr *= twist(model, strands[static_cast<size_t>(s)]).pow(-out.self_writhe[static_cast<size_t>(k)]);
+  }
+  out.invariant = corr * out.quantum_trace / quantum_dimension(model, strands[0]);
+  return out;
+}
+
+}  // namespace zb
