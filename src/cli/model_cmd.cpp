@@ -1,5 +1,185 @@
-// Placeholder: model commands are registered here (see issue "Anyon-model files").
+// `zetabraid model check|info|make`: front end only; the mathematics lives in src/model/.
+#include <fmt/format.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <nlohmann/json.hpp>
+
 #include "commands.hpp"
+#include "zetabraid/error.hpp"
+#include "zetabraid/model/check.hpp"
+#include "zetabraid/model/families.hpp"
+#include "zetabraid/model/invariants.hpp"
+#include "zetabraid/model/load.hpp"
+
 namespace zb::cli {
-void add_model_commands(CLI::App&, Action&) {}
+
+namespace {
+
+using json = nlohmann::ordered_json;
+
+// Progress on stderr, only on a terminal and only once a stage has run for more than a second.
+struct Progress {
+  bool tty = isatty(2) != 0;
+  std::chrono::steady_clock::time_point start = std::chrono::steady_clock::now();
+  bool shown = false;
+  void operator()(const std::string& stage, double frac) {
+    if (!tty) return;
+    double el = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+    if (el < 1.0) return;
+    fmt::print(stderr, "\r  checking {:<16} {:5.1f}%  ({:.0f} s)", stage, 100.0 * frac, el);
+    std::fflush(stderr);
+    shown = true;
+  }
+  void finish() {
+    if (shown) fmt::print(stderr, "\r{:60}\r", "");
+  }
+};
+
+int run_check(const std::string& path, bool as_json, int threads) {
+  Model m = load_model(path);
+  CheckOptions opt;
+  opt.threads = threads;
+  auto prog = std::make_shared<Progress>();
+  opt.progress = [prog](const std::string& s, double f) { (*prog)(s, f); };
+  CheckReport rep = check_model(m, opt);
+  prog->finish();
+  if (as_json) {
+    json j;
+    j["ok"] = rep.ok;
+    j["model"] = m.name;
+    j["file"] = path;
+    json checks = json::object();
+    for (const CheckCount& c : rep.checks) {
+      json x{{"count", c.count}, {"failed", c.failed}};
+      if (c.skipped) x["skipped"] = true;
+      if (!c.note.empty()) x["note"] = c.note;
+      checks[c.name] = x;
+    }
+    j["checks"] = checks;
+    json fl = json::array();
+    for (const CheckFailure& f : rep.failures) {
+      json x{{"check", f.check}, {"labels", f.where}, {"condition", f.what}};
+      if (!f.residual.empty()) x["residual"] = {{"exact", f.residual}, {"ball", f.residual_ball}};
+      if (f.line) x["line"] = f.line;
+      fl.push_back(x);
+    }
+    j["failures"] = fl;
+    j["exact"] = true;
+    fmt::print("{}\n", j.dump());
+  } else {
+    fmt::print("model {} ({}): {}\n", m.name.empty() ? path : m.name, path,
+               rep.ok ? "consistent: every check holds exactly" : "NOT consistent");
+    for (const CheckCount& c : rep.checks) {
+      if (c.skipped)
+        fmt::print("  {:<22} skipped: {}\n", c.name, c.note);
+      else
+        fmt::print("  {:<22} {:>10} checked exactly, {} failed\n", c.name, c.count, c.failed);
+    }
+    for (const CheckFailure& f : rep.failures) {
+      fmt::print("FAILED {}: {}{}\n  {}\n", f.check, f.where, f.line ? fmt::format(" ({}:{})", path, f.line) : "",
+                 f.what);
+      if (!f.residual.empty())
+        fmt::print("  residual = {}\n  residual lies in {}\n", f.residual, f.residual_ball);
+    }
+    long listed = static_cast<long>(rep.failures.size()), total = 0;
+    for (const CheckCount& c : rep.checks) total += c.failed;
+    if (total > listed) fmt::print("  ({} failures in all; the first ones of each check are listed)\n", total);
+  }
+  return rep.ok ? kExitOk : kExitClaimFalse;
+}
+
+}  // namespace
+
+void add_model_commands(CLI::App& app, Action& action) {
+  auto* model = app.add_subcommand("model", "anyon models: consistency checks, invariants, built-in families");
+  model->require_subcommand(1);
+
+  {
+    auto* cmd = model->add_subcommand("check", "check every consistency equation of a model file exactly");
+    struct Opts {
+      std::string file;
+      bool json = false;
+      int threads = 0;
+    };
+    auto o = std::make_shared<Opts>();
+    cmd->add_option("file", o->file, "model file (TOML, see docs/model-format.md)")->required();
+    cmd->add_flag("--json", o->json, "one JSON object: ok, checks {name: {count, failed}}, failures");
+    cmd->add_option("--threads", o->threads, "worker threads (default: all cores, at most 8)")
+        ->check(CLI::Range(1, 64));
+    cmd->callback([o, &action] { action = [o] { return run_check(o->file, o->json, o->threads); }; });
+  }
+  {
+    auto* cmd = model->add_subcommand("info", "exact invariants: dimensions, twists, S, T, indicators, c mod 8");
+    struct Opts {
+      std::string file;
+      bool json = false;
+      long digits = 15;
+    };
+    auto o = std::make_shared<Opts>();
+    cmd->add_option("file", o->file, "model file")->required();
+    cmd->add_flag("--json", o->json, "one JSON object; every number as {exact, ball}");
+    cmd->add_option("--digits", o->digits, "digits of the enclosures")->check(CLI::Range(1, 10000));
+    cmd->callback([o, &action] {
+      action = [o] {
+        Model m = load_model(o->file);
+        Invariants inv = compute_invariants(m, o->digits);
+        fmt::print("{}", o->json ? invariants_json(m, inv, o->digits) + "\n" : invariants_text(m, inv, o->digits));
+        return inv.verlinde_ok ? kExitOk : kExitClaimFalse;
+      };
+    });
+  }
+  {
+    auto* make = model->add_subcommand("make", "write a model of a built-in family");
+    make->require_subcommand(1);
+    struct Opts {
+      int level = 0;
+      std::string out = "-";
+      std::string gauge = "unitary";
+      bool even = false;
+      int order = 0, power = 1;
+    };
+    auto o = std::make_shared<Opts>();
+    auto* su2 = make->add_subcommand("su2", "SU(2)_k from the quantum 6j-symbols (Kirillov-Reshetikhin 1989)");
+    su2->add_option("--level,-k", o->level, "level k >= 1")->required()->check(CLI::Range(1, 40));
+    su2->add_option("--out,-o", o->out, "output file (default: standard output)");
+    su2->add_option("--gauge", o->gauge, "unitary (square roots of quantum integers) or cyclotomic (Q(zeta) only)")
+        ->check(CLI::IsMember({"unitary", "cyclotomic"}));
+    su2->add_flag("--even", o->even, "only the integer spins (the SO(3)_k-type subcategory)");
+    su2->callback([o, &action] {
+      action = [o] {
+        Model m = make_su2(o->level, o->gauge == "cyclotomic" ? Su2Gauge::kCyclotomic : Su2Gauge::kUnitary, o->even);
+        write_file_atomic(o->out, model_to_toml(m));
+        return 0;
+      };
+    });
+    auto* zn = make->add_subcommand("cyclic", "Z_N anyons: trivial F, R^{ab} = exp(2 pi i p a b/N)");
+    zn->add_option("--order,-n", o->order, "N >= 1")->required()->check(CLI::Range(1, 200));
+    zn->add_option("--power,-p", o->power, "p (an integer)");
+    zn->add_option("--out,-o", o->out, "output file (default: standard output)");
+    zn->callback([o, &action] {
+      action = [o] {
+        write_file_atomic(o->out, model_to_toml(make_cyclic(o->order, o->power)));
+        return 0;
+      };
+    });
+    auto* tc = make->add_subcommand("toric-code", "Z_2 x Z_2 toric-code anyons 1, e, m, f");
+    tc->add_option("--out,-o", o->out, "output file (default: standard output)");
+    tc->callback([o, &action] {
+      action = [o] {
+        write_file_atomic(o->out, model_to_toml(make_toric_code()));
+        return 0;
+      };
+    });
+    auto* tf = make->add_subcommand("three-fermion", "Z_2 x Z_2 with three fermions");
+    tf->add_option("--out,-o", o->out, "output file (default: standard output)");
+    tf->callback([o, &action] {
+      action = [o] {
+        write_file_atomic(o->out, model_to_toml(make_three_fermion()));
+        return 0;
+      };
+    });
+  }
+}
+
 }  // namespace zb::cli

@@ -12,6 +12,31 @@ std::uint64_t key6(int a, int b, int c, int d, int e, int f) {
 }
 }  // namespace
 
+Model::Model(const Model& o)
+    : name(o.name), source(o.source), field(o.field), labels(o.labels), claims_unitary(o.claims_unitary),
+      has_r(o.has_r), f_given(o.f_given), r_given(o.r_given), f_line(o.f_line), r_line(o.r_line),
+      fusion_(o.fusion_), f_(o.f_), r_(o.r_) {
+  for (auto& [k, v] : f_) f_index_[key6(k[0], k[1], k[2], k[3], k[4], k[5])] = &v;
+}
+
+Model& Model::operator=(const Model& o) {
+  if (this != &o) {
+    Model tmp(o);
+    *this = std::move(tmp);
+  }
+  return *this;
+}
+
+void Model::clear_symbols() {
+  f_.clear();
+  r_.clear();
+  f_index_.clear();
+  f_given.clear();
+  r_given.clear();
+  f_line.clear();
+  r_line.clear();
+}
+
 int Model::label_index(const std::string& name) const {
   for (size_t i = 0; i < labels.size(); ++i)
     if (labels[i] == name) return static_cast<int>(i);

@@ -13,6 +13,7 @@
 #include <array>
 #include <map>
 #include <optional>
+#include <set>
 #include <string>
 #include <unordered_map>
 #include <vector>
@@ -22,6 +23,12 @@
 namespace zb {
 
 struct Model {
+  Model() = default;
+  Model(const Model& o);             ///< deep copy (rebuilds the fast F index)
+  Model& operator=(const Model& o);
+  Model(Model&&) noexcept = default;
+  Model& operator=(Model&&) noexcept = default;
+
   std::string name;
   std::string source;        ///< provenance text from the file (paper/formula or generating command)
   FieldPtr field;            ///< K(sqrt(d_1), ...) containing every value
@@ -54,6 +61,16 @@ struct Model {
 
   /// Resizes the fusion table for labels.size() labels (all zero).
   void init_fusion();
+  /// Removes every F and R entry (fusion rules stay).
+  void clear_symbols();
+
+  /// F entries and R-symbols that the source (file or generator) gave explicitly, zeros included; used by the
+  /// consistency checker to report missing data. Zero values are given but not stored (f_symbol() == nullptr).
+  std::set<std::array<int, 6>> f_given;
+  std::set<std::array<int, 3>> r_given;
+  /// Source line of each given F entry / R-symbol (0 = unknown), for messages.
+  std::map<std::array<int, 6>, int> f_line;
+  std::map<std::array<int, 3>, int> r_line;
 
  private:
   size_t n() const { return labels.size(); }

@@ -1,0 +1,802 @@
+// Exact consistency checks (see check.hpp for the equations).
+//
+// Speed: F- and R-symbols are copied once into flat tables of sparse radical-monomial values (mask, Q(zeta)
+// coefficient); the pentagon/hexagon loops then run on raw antic nf_elem arithmetic with per-thread reusable
+// accumulators, so the innermost loop does no map lookups and creates no Scalar temporaries. Work is split by
+// fusion-tree blocks over std::thread; results are gathered per block, so the report is deterministic.
+#include "zetabraid/model/check.hpp"
+
+#include <fmt/format.h>
+
+#include <atomic>
+#include <chrono>
+#include <complex>
+#include <thread>
+#include <unordered_map>
+
+#include "zetabraid/error.hpp"
+#include "zetabraid/linalg/matrix.hpp"
+
+namespace zb {
+
+const CheckCount* CheckReport::find(const std::string& name) const {
+  for (const CheckCount& c : checks)
+    if (c.name == name) return &c;
+  return nullptr;
+}
+
+namespace {
+
+// A sparse exact value: sum_i c[i] * sqrt(d_{m[i]}), reusable storage (size n <= capacity).
+struct Acc {
+  std::vector<RadicalMask> m;
+  std::vector<Cyclo> c;
+  size_t n = 0;
+  CyclotomicFieldPtr k;
+  explicit Acc(CyclotomicFieldPtr kk) : k(std::move(kk)) {}
+  void clear() { n = 0; }
+  nf_elem_struct* slot(RadicalMask mask) {
+    for (size_t i = 0; i < n; ++i)
+      if (m[i] == mask) return c[i].raw();
+    if (n == c.size()) {
+      c.emplace_back(k);
+      m.push_back(mask);
+    } else {
+      m[n] = mask;
+      nf_elem_zero(c[n].raw(), k->nf());
+    }
+    return c[n++].raw();
+  }
+  bool is_zero() const {
+    for (size_t i = 0; i < n; ++i)
+      if (!nf_elem_is_zero(c[i].raw(), k->nf())) return false;
+    return true;
+  }
+  void set(const Scalar& s) {
+    clear();
+    for (const auto& [mask, cf] : s.terms()) nf_elem_set(slot(mask), cf.raw(), k->nf());
+  }
+  Scalar to_scalar(const FieldPtr& f) const {
+    Scalar r(f);
+    for (size_t i = 0; i < n; ++i)
+      if (!nf_elem_is_zero(c[i].raw(), k->nf())) r += Scalar::monomial(f, c[i], m[i]);
+    return r;
+  }
+};
+
+struct Tables {
+  const Model& M;
+  int n;
+  FieldPtr F;
+  const nf_struct* nf;
+  bool dense;
+  std::vector<int> fdense;
+  std::unordered_map<std::uint64_t, int> fsparse;
+  std::vector<Acc> fvals;
+  std::vector<int> ridx;
+  std::vector<Acc> rvals, rinv;
+  std::vector<std::vector<int>> ch;
+  std::vector<std::complex<double>> fd, rd, rid;  // double images (benchmarks only)
+
+  explicit Tables(const Model& m) : M(m), n(m.label_count()), F(m.field), nf(m.field->cyclotomic()->nf()) {
+    size_t n6 = 1;
+    for (int i = 0; i < 6; ++i) n6 *= static_cast<size_t>(n);
+    dense = n <= 14;
+    if (dense) fdense.assign(n6, -1);
+    for (const auto& [key, v] : M.f_symbols()) {
+      if (v.is_zero()) continue;
+      int id = static_cast<int>(fvals.size());
+      fvals.emplace_back(F->cyclotomic());
+      fvals.back().set(v);
+      if (dense)
+        fdense[idx6(key[0], key[1], key[2], key[3], key[4], key[5])] = id;
+      else
+        fsparse[idx6(key[0], key[1], key[2], key[3], key[4], key[5])] = id;
+    }
+    ridx.assign(static_cast<size_t>(n) * n * n, -1);
+    for (const auto& [key, v] : M.r_symbols()) {
+      if (v.is_zero()) continue;
+      ridx[(static_cast<size_t>(key[0]) * n + key[1]) * n + key[2]] = static_cast<int>(rvals.size());
+      rvals.emplace_back(F->cyclotomic());
+      rvals.back().set(v);
+      rinv.emplace_back(F->cyclotomic());
+      rinv.back().set(v.inverse());
+    }
+    ch.resize(static_cast<size_t>(n) * n);
+    for (int a = 0; a < n; ++a)
+      for (int b = 0; b < n; ++b) ch[static_cast<size_t>(a) * n + b] = M.channels(a, b);
+  }
+  size_t idx6(int a, int b, int c, int d, int e, int f) const {
+    size_t N = static_cast<size_t>(n);
+    return ((((static_cast<size_t>(a) * N + b) * N + c) * N + d) * N + e) * N + f;
+  }
+  int fid(int a, int b, int c, int d, int e, int f) const {
+    size_t i = idx6(a, b, c, d, e, f);
+    if (dense) return fdense[i];
+    auto it = fsparse.find(i);
+    return it == fsparse.end() ? -1 : it->second;
+  }
+  const Acc* fv(int a, int b, int c, int d, int e, int f) const {
+    int i = fid(a, b, c, d, e, f);
+    return i < 0 ? nullptr : &fvals[static_cast<size_t>(i)];
+  }
+  int rid_(int a, int b, int c) const { return ridx[(static_cast<size_t>(a) * n + b) * n + c]; }
+  const Acc* rv(int a, int b, int c) const {
+    int i = rid_(a, b, c);
+    return i < 0 ? nullptr : &rvals[static_cast<size_t>(i)];
+  }
+  const Acc* riv(int a, int b, int c) const {
+    int i = rid_(a, b, c);
+    return i < 0 ? nullptr : &rinv[static_cast<size_t>(i)];
+  }
+  const std::vector<int>& chan(int a, int b) const { return ch[static_cast<size_t>(a) * n + b]; }
+  bool N(int a, int b, int c) const { return M.fusion(a, b, c) > 0; }
+
+  void make_double() {
+    auto img = [&](const Acc& v) {
+      Scalar s = v.to_scalar(F);
+      acb_t b;
+      acb_init(b);
+      s.ball(b, 64);
+      std::complex<double> z(arf_get_d(arb_midref(acb_realref(b)), ARF_RND_NEAR),
+                             arf_get_d(arb_midref(acb_imagref(b)), ARF_RND_NEAR));
+      acb_clear(b);
+      return z;
+    };
+    for (const Acc& v : fvals) fd.push_back(img(v));
+    for (const Acc& v : rvals) rd.push_back(img(v));
+    for (const Acc& v : rinv) rid.push_back(img(v));
+  }
+};
+
+// Per-thread scratch space and the exact kernels.
+struct Worker {
+  const Tables& T;
+  Cyclo t1, t2;
+  std::unordered_map<RadicalMask, Cyclo> rad;
+  explicit Worker(const Tables& t) : T(t), t1(t.F->cyclotomic()), t2(t.F->cyclotomic()) {}
+
+  const Cyclo& radprod(RadicalMask s) {
+    auto it = rad.find(s);
+    if (it != rad.end()) return it->second;
+    return rad.emplace(s, T.F->radicand_product(s)).first->second;
+  }
+  // out += x * y
+  void addmul(Acc& out, const Acc& x, const Acc& y) {
+    for (size_t i = 0; i < x.n; ++i)
+      for (size_t j = 0; j < y.n; ++j) {
+        nf_elem_mul(t1.raw(), x.c[i].raw(), y.c[j].raw(), T.nf);
+        RadicalMask common = x.m[i] & y.m[j];
+        if (common) {
+          nf_elem_mul(t2.raw(), t1.raw(), radprod(common).raw(), T.nf);
+          nf_elem_swap(t1.raw(), t2.raw(), T.nf);
+        }
+        nf_elem_struct* s = out.slot(x.m[i] ^ y.m[j]);
+        nf_elem_add(s, s, t1.raw(), T.nf);
+      }
+  }
+  void mul(Acc& out, const Acc& x, const Acc& y) {
+    out.clear();
+    addmul(out, x, y);
+  }
+  void sub(Acc& out, const Acc& x) {
+    for (size_t i = 0; i < x.n; ++i) {
+      nf_elem_struct* s = out.slot(x.m[i]);
+      nf_elem_sub(s, s, x.c[i].raw(), T.nf);
+    }
+  }
+};
+
+std::string lab(const Model& m, int a) { return m.labels[static_cast<size_t>(a)]; }
+
+struct BlockResult {
+  long count = 0, failed = 0;
+  std::vector<CheckFailure> failures;
+};
+
+// Runs work(i, worker, result) for i in [0, total) on threads; returns per-item results in order.
+template <class Work>
+std::vector<BlockResult> run_parallel(const Tables& T, size_t total, int threads, const std::string& stage,
+                                      const CheckOptions& opt, Work work) {
+  std::vector<BlockResult> res(total);
+  std::atomic<size_t> next{0}, done{0};
+  auto body = [&] {
+    Worker w(T);
+    for (;;) {
+      size_t i = next.fetch_add(1);
+      if (i >= total) break;
+      work(i, w, res[i]);
+      done.fetch_add(1);
+    }
+  };
+  int nt = std::max(1, std::min<int>(threads, static_cast<int>(total)));
+  std::vector<std::thread> pool;
+  std::exception_ptr err;
+  std::mutex err_mu;
+  for (int t = 0; t < nt; ++t)
+    pool.emplace_back([&] {
+      try {
+        body();
+      } catch (...) {
+        std::lock_guard<std::mutex> g(err_mu);
+        if (!err) err = std::current_exception();
+        next.store(total);
+      }
+    });
+  if (opt.progress) {
+    while (done.load() < total && next.load() < total + static_cast<size_t>(nt) + 1) {
+      std::this_thread::sleep_for(std::chrono::milliseconds(100));
+      if (err) break;
+      opt.progress(stage, total ? static_cast<double>(done.load()) / static_cast<double>(total) : 1.0);
+      if (done.load() >= total) break;
+    }
+  }
+  for (auto& th : pool) th.join();
+  if (err) std::rethrow_exception(err);
+  return res;
+}
+
+int thread_count(const CheckOptions& opt) {
+  if (opt.threads > 0) return opt.threads;
+  unsigned h = std::thread::hardware_concurrency();
+  return static_cast<int>(std::clamp(h, 1u, 8u));
+}
+
+std::string ball_of(const Scalar& s, long digits) {
+  acb_t b;
+  acb_init(b);
+  s.ball(b, static_cast<long>(digits * 3.33) + 16);
+  std::string out = ball_str(b, digits);
+  acb_clear(b);
+  return out;
+}
+
+struct PentagonBlock {
+  int a, b, c, d, e;
+};
+
+std::vector<PentagonBlock> pentagon_blocks(const Tables& T) {
+  std::vector<PentagonBlock> out;
+  int n = T.n;
+  for (int a = 0; a < n; ++a)
+    for (int b = 0; b < n; ++b)
+      for (int c = 0; c < n; ++c)
+        for (int d = 0; d < n; ++d)
+          for (int e = 0; e < n; ++e) {
+            bool any = false;
+            for (int f : T.chan(a, b))
+              for (int g : T.chan(f, c))
+                if (T.N(g, d, e)) any = true;
+            if (any) out.push_back({a, b, c, d, e});
+          }
+  return out;
+}
+
+// One pentagon block: every (f,g) x (k,l).
+void pentagon_block(const Tables& T, const PentagonBlock& B, Worker& w, BlockResult& r, const CheckOptions& opt,
+                    bool record) {
+  const int a = B.a, b = B.b, c = B.c, d = B.d, e = B.e, n = T.n;
+  std::vector<std::pair<int, int>> right;  // (k, l)
+  std::vector<int> pos(static_cast<size_t>(n) * n, -1);
+  for (int l : T.chan(c, d))
+    for (int k : T.chan(b, l))
+      if (T.N(a, k, e)) {
+        pos[static_cast<size_t>(k) * n + l] = static_cast<int>(right.size());
+        right.emplace_back(k, l);
+      }
+  std::vector<Acc> acc(right.size(), Acc(T.F->cyclotomic()));
+  Acc p(T.F->cyclotomic()), lhs(T.F->cyclotomic());
+  for (int f : T.chan(a, b))
+    for (int g : T.chan(f, c)) {
+      if (!T.N(g, d, e)) continue;
+      for (Acc& x : acc) x.clear();
+      for (int h : T.chan(b, c)) {
+        const Acc* x1 = T.fv(a, b, c, g, f, h);
+        if (!x1) continue;
+        for (int k : T.chan(h, d)) {
+          if (!T.N(a, k, e)) continue;
+          const Acc* x2 = T.fv(a, h, d, e, g, k);
+          if (!x2) continue;
+          w.mul(p, *x1, *x2);
+          for (int l : T.chan(c, d)) {
+            int ps = pos[static_cast<size_t>(k) * n + l];
+            if (ps < 0) continue;
+            const Acc* x3 = T.fv(b, c, d, k, h, l);
+            if (!x3) continue;
+            w.addmul(acc[static_cast<size_t>(ps)], p, *x3);
+          }
+        }
+      }
+      for (size_t j = 0; j < right.size(); ++j) {
+        auto [k, l] = right[j];
+        const Acc* y1 = T.fv(f, c, d, e, g, l);
+        const Acc* y2 = T.fv(a, b, l, e, f, k);
+        lhs.clear();
+        if (y1 && y2) w.addmul(lhs, *y1, *y2);
+        w.sub(lhs, acc[j]);
+        ++r.count;
+        if (!lhs.is_zero()) {
+          ++r.failed;
+          if (record && r.failures.size() < opt.max_failures) {
+            const Model& M = T.M;
+            Scalar res = lhs.to_scalar(T.F);
+            CheckFailure fl;
+            fl.check = "pentagon";
+            fl.where = fmt::format("a={} b={} c={} d={} e={} f={} g={} k={} l={}", lab(M, a), lab(M, b), lab(M, c),
+                                   lab(M, d), lab(M, e), lab(M, f), lab(M, g), lab(M, k), lab(M, l));
+            fl.what = "[F^{fcd}_e]_{gl} [F^{abl}_e]_{fk} - sum_h [F^{abc}_g]_{fh} [F^{ahd}_e]_{gk} [F^{bcd}_k]_{hl} != 0";
+            fl.residual = res.str();
+            fl.residual_ball = ball_of(res, opt.ball_digits);
+            r.failures.push_back(std::move(fl));
+          }
+        }
+      }
+    }
+}
+
+struct HexBlock {
+  int a, b, c, d;
+};
+
+std::vector<HexBlock> hexagon_blocks(const Tables& T) {
+  std::vector<HexBlock> out;
+  for (int a = 0; a < T.n; ++a)
+    for (int b = 0; b < T.n; ++b)
+      for (int c = 0; c < T.n; ++c)
+        for (int d = 0; d < T.n; ++d) {
+          bool any = false;
+          for (int e : T.chan(a, c))
+            if (T.N(e, b, d)) any = true;
+          if (any) out.push_back({a, b, c, d});
+        }
+  return out;
+}
+
+// Both hexagons of one block (a,b,c,d); inverse selects the reverse equation.
+void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, Worker& w, BlockResult& r,
+                   const CheckOptions& opt, bool record) {
+  const int a = B.a, b = B.b, c = B.c, d = B.d;
+  Acc lhs(T.F->cyclotomic()), t(T.F->cyclotomic()), u(T.F->cyclotomic());
+  for (int e : T.chan(a, c)) {
+    if (!T.N(e, b, d)) continue;
+    for (int g : T.chan(c, b)) {
+      if (!T.N(a, g, d)) continue;
+      // left side
+      lhs.clear();
+      const Acc* r1 = inverse ? T.riv(a, c, e) : T.rv(c, a, e);
+      const Acc* f1 = T.fv(a, c, b, d, e, g);
+      const Acc* r2 = inverse ? T.riv(b, c, g) : T.rv(c, b, g);
+      if (r1 && f1 && r2) {
+        w.mul(t, *r1, *f1);
+        w.addmul(lhs, t, *r2);
+      }
+      // minus the right side
+      for (int f : T.chan(a, b)) {
+        const Acc* x1 = T.fv(c, a, b, d, e, f);
+        const Acc* x2 = inverse ? T.riv(f, c, d) : T.rv(c, f, d);
+        const Acc* x3 = T.fv(a, b, c, d, f, g);
+        if (!x1 || !x2 || !x3) continue;
+        w.mul(t, *x1, *x2);
+        w.mul(u, t, *x3);
+        w.sub(lhs, u);
+      }
+      ++r.count;
+      if (!lhs.is_zero()) {
+        ++r.failed;
+        if (record && r.failures.size() < opt.max_failures) {
+          const Model& M = T.M;
+          Scalar res = lhs.to_scalar(T.F);
+          CheckFailure fl;
+          fl.check = inverse ? "hexagon_reverse" : "hexagon";
+          fl.where = fmt::format("a={} b={} c={} d={} e={} g={}", lab(M, a), lab(M, b), lab(M, c), lab(M, d),
+                                 lab(M, e), lab(M, g));
+          fl.what = inverse ? "(R^{ac}_e)^-1 [F^{acb}_d]_{eg} (R^{bc}_g)^-1 - sum_f [F^{cab}_d]_{ef} (R^{fc}_d)^-1 "
+                              "[F^{abc}_d]_{fg} != 0"
+                            : "R^{ca}_e [F^{acb}_d]_{eg} R^{cb}_g - sum_f [F^{cab}_d]_{ef} R^{cf}_d [F^{abc}_d]_{fg} != 0";
+          fl.residual = res.str();
+          fl.residual_ball = ball_of(res, opt.ball_digits);
+          r.failures.push_back(std::move(fl));
+        }
+      }
+    }
+  }
+}
+
+// Gathers block results into a count, keeping at most max_failures failures.
+CheckCount gather(const std::string& name, std::vector<BlockResult>& res, CheckReport& rep, size_t max_failures) {
+  CheckCount cc;
+  cc.name = name;
+  size_t listed = 0;
+  for (BlockResult& b : res) {
+    cc.count += b.count;
+    cc.failed += b.failed;
+    for (CheckFailure& f : b.failures)
+      if (listed < max_failures) {
+        rep.failures.push_back(std::move(f));
+        ++listed;
+      }
+  }
+  return cc;
+}
+
+std::vector<int> left_ch(const Model& m, int a, int b, int c, int d) {
+  std::vector<int> out;
+  for (int e = 0; e < m.label_count(); ++e)
+    if (m.fusion(a, b, e) && m.fusion(e, c, d)) out.push_back(e);
+  return out;
+}
+std::vector<int> right_ch(const Model& m, int a, int b, int c, int d) {
+  std::vector<int> out;
+  for (int f = 0; f < m.label_count(); ++f)
+    if (m.fusion(b, c, f) && m.fusion(a, f, d)) out.push_back(f);
+  return out;
+}
+
+}  // namespace
+
+CheckReport check_model(const Model& M, const CheckOptions& opt) {
+  auto t0 = std::chrono::steady_clock::now();
+  CheckReport rep;
+  const int n = M.label_count();
+  auto L = [&](int a) { return lab(M, a); };
+  auto add_failure = [&](CheckCount& cc, CheckFailure f) {
+    ++cc.failed;
+    size_t listed = 0;
+    for (const CheckFailure& x : rep.failures) listed += x.check == cc.name;
+    if (listed < opt.max_failures) rep.failures.push_back(std::move(f));
+  };
+  auto simple = [&](const std::string& check, std::string where, std::string what, int line = 0) {
+    CheckFailure f;
+    f.check = check;
+    f.where = std::move(where);
+    f.what = std::move(what);
+    f.line = line;
+    return f;
+  };
+  if (n == 0) throw InputError("the model has no labels");
+
+  // --- fusion rules
+  {
+    CheckCount cc;
+    cc.name = "fusion_unit";
+    for (int a = 0; a < n; ++a) {
+      ++cc.count;
+      bool ok = true;
+      for (int b = 0; b < n; ++b) ok = ok && M.fusion(0, a, b) == (a == b) && M.fusion(a, 0, b) == (a == b);
+      if (!ok)
+        add_failure(cc, simple(cc.name, "a=" + L(a), fmt::format("{} x {} and {} x {} must both be exactly {}",
+                                                                 L(0), L(a), L(a), L(0), L(a))));
+    }
+    rep.checks.push_back(cc);
+  }
+  {
+    CheckCount cc;
+    cc.name = "fusion_duals";
+    for (int a = 0; a < n; ++a) {
+      ++cc.count;
+      int found = 0, dual = -1;
+      bool mult_ok = true;
+      for (int b = 0; b < n; ++b)
+        if (M.fusion(a, b, 0) > 0) {
+          ++found;
+          dual = b;
+          mult_ok = mult_ok && M.fusion(a, b, 0) == 1;
+        }
+      if (found != 1 || !mult_ok || M.fusion(dual, a, 0) != 1)
+        add_failure(cc, simple(cc.name, "a=" + L(a),
+                               fmt::format("exactly one label b with {} in a x b (and in b x a) is required; found {}",
+                                           L(0), found)));
+      else {
+        bool nonempty = true;
+        for (int b = 0; b < n; ++b) nonempty = nonempty && !M.channels(a, b).empty();
+        if (!nonempty) add_failure(cc, simple(cc.name, "a=" + L(a), "some product a x b has no channel"));
+      }
+    }
+    rep.checks.push_back(cc);
+  }
+  {
+    CheckCount cc;
+    cc.name = "fusion_associativity";
+    for (int a = 0; a < n; ++a)
+      for (int b = 0; b < n; ++b)
+        for (int c = 0; c < n; ++c)
+          for (int d = 0; d < n; ++d) {
+            ++cc.count;
+            long left = 0, right = 0;
+            for (int e = 0; e < n; ++e) {
+              left += static_cast<long>(M.fusion(a, b, e)) * M.fusion(e, c, d);
+              right += static_cast<long>(M.fusion(b, c, e)) * M.fusion(a, e, d);
+            }
+            if (left != right)
+              add_failure(cc, simple(cc.name, fmt::format("a={} b={} c={} d={}", L(a), L(b), L(c), L(d)),
+                                     fmt::format("(a x b) x c contains d {} times but a x (b x c) {} times", left,
+                                                 right)));
+          }
+    rep.checks.push_back(cc);
+  }
+  if (M.has_r) {
+    CheckCount cc;
+    cc.name = "fusion_commutativity";
+    for (int a = 0; a < n; ++a)
+      for (int b = a + 1; b < n; ++b) {
+        ++cc.count;
+        bool ok = true;
+        for (int c = 0; c < n; ++c) ok = ok && M.fusion(a, b, c) == M.fusion(b, a, c);
+        if (!ok)
+          add_failure(cc, simple(cc.name, fmt::format("a={} b={}", L(a), L(b)),
+                                 "a braided model needs a x b = b x a"));
+      }
+    rep.checks.push_back(cc);
+  }
+
+  // --- F data
+  {
+    CheckCount cc;
+    cc.name = "f_admissible";
+    for (int a = 0; a < n; ++a)
+      for (int b = 0; b < n; ++b)
+        for (int c = 0; c < n; ++c)
+          for (int d = 0; d < n; ++d)
+            for (int e : left_ch(M, a, b, c, d))
+              for (int f : right_ch(M, a, b, c, d)) {
+                ++cc.count;
+                if (!M.f_given.count({a, b, c, d, e, f}))
+                  add_failure(cc, simple(cc.name,
+                                         fmt::format("a={} b={} c={} d={} e={} f={}", L(a), L(b), L(c), L(d), L(e),
+                                                     L(f)),
+                                         "admissible F-symbol [F^{abc}_d]_{ef} is missing"));
+              }
+    for (const auto& [k, v] : M.f_symbols()) {
+      bool adm = M.fusion(k[0], k[1], k[4]) && M.fusion(k[4], k[2], k[3]) && M.fusion(k[1], k[2], k[5]) &&
+                 M.fusion(k[0], k[5], k[3]);
+      if (adm || v.is_zero()) continue;
+      ++cc.count;
+      auto it = M.f_line.find(k);
+      add_failure(cc, simple(cc.name,
+                             fmt::format("a={} b={} c={} d={} e={} f={}", L(k[0]), L(k[1]), L(k[2]), L(k[3]),
+                                         L(k[4]), L(k[5])),
+                             "nonzero F-symbol that the fusion rules do not allow", it == M.f_line.end() ? 0 : it->second));
+    }
+    rep.checks.push_back(cc);
+  }
+  std::vector<std::array<int, 4>> fblocks;
+  for (int a = 0; a < n; ++a)
+    for (int b = 0; b < n; ++b)
+      for (int c = 0; c < n; ++c)
+        for (int d = 0; d < n; ++d)
+          if (!left_ch(M, a, b, c, d).empty() || !right_ch(M, a, b, c, d).empty()) fblocks.push_back({a, b, c, d});
+  auto block_matrix = [&](const std::array<int, 4>& B, std::vector<int>& rows, std::vector<int>& cols) {
+    rows = left_ch(M, B[0], B[1], B[2], B[3]);
+    cols = right_ch(M, B[0], B[1], B[2], B[3]);
+    Matrix X(M.field, rows.size(), cols.size());
+    for (size_t i = 0; i < rows.size(); ++i)
+      for (size_t j = 0; j < cols.size(); ++j)
+        if (const Scalar* v = M.f_symbol(B[0], B[1], B[2], B[3], rows[i], cols[j])) X(i, j) = *v;
+    return X;
+  };
+  auto block_name = [&](const std::array<int, 4>& B) {
+    return fmt::format("a={} b={} c={} d={}", L(B[0]), L(B[1]), L(B[2]), L(B[3]));
+  };
+  {
+    CheckCount cc;
+    cc.name = "f_invertible";
+    for (const auto& B : fblocks) {
+      ++cc.count;
+      std::vector<int> rows, cols;
+      Matrix X = block_matrix(B, rows, cols);
+      if (rows.size() != cols.size())
+        add_failure(cc, simple(cc.name, block_name(B),
+                               fmt::format("F^{{abc}}_d is {}x{}, not square (fusion rules not associative)",
+                                           rows.size(), cols.size())));
+      else if (X.rank() != rows.size())
+        add_failure(cc, simple(cc.name, block_name(B),
+                               fmt::format("F^{{abc}}_d is singular (rank {} of {})", X.rank(), rows.size())));
+    }
+    rep.checks.push_back(cc);
+  }
+  {
+    CheckCount cc;
+    cc.name = "f_normalisation";
+    for (const auto& B : fblocks) {
+      if (B[0] != 0 && B[1] != 0 && B[2] != 0) continue;
+      std::vector<int> rows, cols;
+      Matrix X = block_matrix(B, rows, cols);
+      for (size_t i = 0; i < rows.size(); ++i)
+        for (size_t j = 0; j < cols.size(); ++j) {
+          ++cc.count;
+          if (!X(i, j).is_one()) {
+            CheckFailure f = simple(cc.name, block_name(B) + fmt::format(" e={} f={}", L(rows[i]), L(cols[j])),
+                                    "an F-symbol with the unit among a, b, c must be 1");
+            f.residual = (X(i, j) - Scalar(M.field, 1)).str();
+            f.residual_ball = ball_of(X(i, j) - Scalar(M.field, 1), opt.ball_digits);
+            add_failure(cc, std::move(f));
+          }
+        }
+    }
+    rep.checks.push_back(cc);
+  }
+
+  // --- R data
+  if (M.has_r) {
+    CheckCount cc;
+    cc.name = "r_admissible";
+    for (int a = 0; a < n; ++a)
+      for (int b = 0; b < n; ++b)
+        for (int c = 0; c < n; ++c) {
+          bool adm = M.fusion(a, b, c) > 0;
+          const Scalar* v = M.r_symbol(a, b, c);
+          if (adm) {
+            ++cc.count;
+            if (!M.r_given.count({a, b, c}))
+              add_failure(cc, simple(cc.name, fmt::format("a={} b={} c={}", L(a), L(b), L(c)),
+                                     "admissible R-symbol R^{ab}_c is missing"));
+            else if (!v)
+              add_failure(cc, simple(cc.name, fmt::format("a={} b={} c={}", L(a), L(b), L(c)),
+                                     "R^{ab}_c must be nonzero (the exchange is invertible)"));
+          } else if (v) {
+            ++cc.count;
+            auto it = M.r_line.find({a, b, c});
+            add_failure(cc, simple(cc.name, fmt::format("a={} b={} c={}", L(a), L(b), L(c)),
+                                   "nonzero R-symbol that the fusion rules do not allow",
+                                   it == M.r_line.end() ? 0 : it->second));
+          }
+        }
+    rep.checks.push_back(cc);
+  }
+
+  // --- pentagons and hexagons
+  Tables T(M);
+  int threads = thread_count(opt);
+  {
+    auto blocks = pentagon_blocks(T);
+    auto res = run_parallel(T, blocks.size(), threads, "pentagon", opt,
+                            [&](size_t i, Worker& w, BlockResult& r) { pentagon_block(T, blocks[i], w, r, opt, true); });
+    rep.checks.push_back(gather("pentagon", res, rep, opt.max_failures));
+  }
+  if (M.has_r) {
+    auto blocks = hexagon_blocks(T);
+    for (bool inv : {false, true}) {
+      std::string name = inv ? "hexagon_reverse" : "hexagon";
+      auto res = run_parallel(T, blocks.size(), threads, name, opt, [&](size_t i, Worker& w, BlockResult& r) {
+        hexagon_block(T, blocks[i], inv, w, r, opt, true);
+      });
+      rep.checks.push_back(gather(name, res, rep, opt.max_failures));
+    }
+  } else {
+    CheckCount cc;
+    cc.name = "hexagon";
+    cc.skipped = true;
+    cc.note = "no R-symbols given (fusion category only)";
+    rep.checks.push_back(cc);
+  }
+
+  // --- unitarity
+  if (M.claims_unitary) {
+    CheckCount cc;
+    cc.name = "unitarity";
+    for (const auto& B : fblocks) {
+      std::vector<int> rows, cols;
+      Matrix X = block_matrix(B, rows, cols);
+      if (rows.size() != cols.size()) continue;
+      ++cc.count;
+      Matrix D = X * X.adjoint() - Matrix::identity(M.field, rows.size());
+      if (!D.is_zero()) {
+        CheckFailure f = simple(cc.name, block_name(B), "F^{abc}_d (F^{abc}_d)^dagger != 1 (gauge claimed unitary)");
+        Scalar worst(M.field);
+        for (size_t i = 0; i < D.rows() && worst.is_zero(); ++i)
+          for (size_t j = 0; j < D.cols() && worst.is_zero(); ++j) worst = D(i, j);
+        f.residual = worst.str();
+        f.residual_ball = ball_of(worst, opt.ball_digits);
+        add_failure(cc, std::move(f));
+      }
+    }
+    for (const auto& [k, v] : M.r_symbols()) {
+      ++cc.count;
+      Scalar dev = v.abs2() - Scalar(M.field, 1);
+      if (!dev.is_zero()) {
+        CheckFailure f = simple(cc.name, fmt::format("R a={} b={} c={}", L(k[0]), L(k[1]), L(k[2])),
+                                "|R^{ab}_c|^2 != 1 (gauge claimed unitary)");
+        f.residual = dev.str();
+        f.residual_ball = ball_of(dev, opt.ball_digits);
+        add_failure(cc, std::move(f));
+      }
+    }
+    rep.checks.push_back(cc);
+  }
+
+  for (const CheckCount& c : rep.checks) rep.ok = rep.ok && c.failed == 0;
+  rep.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  return rep;
+}
+
+EquationCount check_equations_only(const Model& M, int threads) {
+  Tables T(M);
+  CheckOptions opt;
+  EquationCount out;
+  auto pb = pentagon_blocks(T);
+  auto res = run_parallel(T, pb.size(), threads, "pentagon", opt,
+                          [&](size_t i, Worker& w, BlockResult& r) { pentagon_block(T, pb[i], w, r, opt, false); });
+  for (auto& r : res) out.pentagons += r.count, out.failed += r.failed;
+  if (M.has_r) {
+    auto hb = hexagon_blocks(T);
+    for (bool inv : {false, true}) {
+      auto hr = run_parallel(T, hb.size(), threads, "hexagon", opt, [&](size_t i, Worker& w, BlockResult& r) {
+        hexagon_block(T, hb[i], inv, w, r, opt, false);
+      });
+      for (auto& r : hr) out.hexagons += r.count, out.failed += r.failed;
+    }
+  }
+  return out;
+}
+
+EquationCount evaluate_equations_double(const Model& M, double* max_residual) {
+  Tables T(M);
+  T.make_double();
+  using C = std::complex<double>;
+  auto F = [&](int a, int b, int c, int d, int e, int f) {
+    int i = T.fid(a, b, c, d, e, f);
+    return i < 0 ? C(0) : T.fd[static_cast<size_t>(i)];
+  };
+  auto R = [&](int a, int b, int c, bool inv) {
+    int i = T.rid_(a, b, c);
+    return i < 0 ? C(0) : (inv ? T.rid : T.rd)[static_cast<size_t>(i)];
+  };
+  EquationCount out;
+  double worst = 0;
+  int n = T.n;
+  for (const PentagonBlock& B : pentagon_blocks(T)) {
+    const int a = B.a, b = B.b, c = B.c, d = B.d, e = B.e;
+    std::vector<std::pair<int, int>> right;
+    std::vector<int> pos(static_cast<size_t>(n) * n, -1);
+    for (int l : T.chan(c, d))
+      for (int k : T.chan(b, l))
+        if (T.N(a, k, e)) {
+          pos[static_cast<size_t>(k) * n + l] = static_cast<int>(right.size());
+          right.emplace_back(k, l);
+        }
+    std::vector<C> acc(right.size());
+    for (int f : T.chan(a, b))
+      for (int g : T.chan(f, c)) {
+        if (!T.N(g, d, e)) continue;
+        std::fill(acc.begin(), acc.end(), C(0));
+        for (int h : T.chan(b, c)) {
+          C x1 = F(a, b, c, g, f, h);
+          if (x1 == C(0)) continue;
+          for (int k : T.chan(h, d)) {
+            if (!T.N(a, k, e)) continue;
+            C p = x1 * F(a, h, d, e, g, k);
+            for (int l : T.chan(c, d)) {
+              int ps = pos[static_cast<size_t>(k) * n + l];
+              if (ps >= 0) acc[static_cast<size_t>(ps)] += p * F(b, c, d, k, h, l);
+            }
+          }
+        }
+        for (size_t j = 0; j < right.size(); ++j) {
+          auto [k, l] = right[j];
+          worst = std::max(worst, std::abs(F(f, c, d, e, g, l) * F(a, b, l, e, f, k) - acc[j]));
+          ++out.pentagons;
+        }
+      }
+  }
+  if (M.has_r)
+    for (bool inv : {false, true})
+      for (const HexBlock& B : hexagon_blocks(T)) {
+        const int a = B.a, b = B.b, c = B.c, d = B.d;
+        for (int e : T.chan(a, c)) {
+          if (!T.N(e, b, d)) continue;
+          for (int g : T.chan(c, b)) {
+            if (!T.N(a, g, d)) continue;
+            C lhs = inv ? R(a, c, e, true) * F(a, c, b, d, e, g) * R(b, c, g, true)
+                        : R(c, a, e, false) * F(a, c, b, d, e, g) * R(c, b, g, false);
+            for (int f : T.chan(a, b))
+              lhs -= F(c, a, b, d, e, f) * (inv ? R(f, c, d, true) : R(c, f, d, false)) * F(a, b, c, d, f, g);
+            worst = std::max(worst, std::abs(lhs));
+            ++out.hexagons;
+          }
+        }
+      }
+  if (max_residual) *max_residual = worst;
+  return out;
+}
+
+}  // namespace zb
