@@ -1,5 +1,6 @@
 // zetabraid command-line front end: option parsing and dispatch only; the mathematics lives in the library.
 #include <fmt/format.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <cstdio>
@@ -25,6 +26,9 @@ void write_file_atomic(const std::string& path, const std::string& text) {
   buf.push_back('\0');
   int fd = mkstemp(buf.data());
   if (fd < 0) throw InputError("cannot create a temporary file in " + dir.string());
+  mode_t mask = umask(0);  // mkstemp creates 0600; give the output the usual permissions
+  umask(mask);
+  fchmod(fd, 0666 & ~mask);
   std::string tmp(buf.data());
   FILE* f = fdopen(fd, "wb");
   bool ok = f && std::fwrite(text.data(), 1, text.size(), f) == text.size();
