@@ -1,0 +1,93 @@
+// Certificate writing (deterministic bytes) and hashing.
+#include "zetabraid/cert/certificate.hpp"
+
+#include <fmt/format.h>
+#include <openssl/evp.h>
+
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <sstream>
+
+#include "zetabraid/error.hpp"
+
+namespace zb {
+
+using ojson = nlohmann::ordered_json;
+
+std::string read_file_bytes(const std::string& path) {
+  std::ifstream f(path, std::ios::binary);
+  if (!f) throw InputError(fmt::format("{}: cannot read file", path));
+  std::ostringstream s;
+  s << f.rdbuf();
+  return s.str();
+}
+
+std::string sha256_hex(const std::string& bytes) {
+  unsigned char md[EVP_MAX_MD_SIZE];
+  unsigned int len = 0;
+  EVP_MD_CTX* ctx = EVP_MD_CTX_new();
+  bool ok = ctx && EVP_DigestInit_ex(ctx, EVP_sha256(), nullptr) == 1 &&
+            EVP_DigestUpdate(ctx, bytes.data(), bytes.size()) == 1 && EVP_DigestFinal_ex(ctx, md, &len) == 1;
+  EVP_MD_CTX_free(ctx);
+  if (!ok) throw MathError("SHA-256 computation failed (OpenSSL)");
+  std::string hex;
+  for (unsigned int i = 0; i < len; ++i) hex += fmt::format("{:02x}", md[i]);
+  return hex;
+}
+
+std::string sha256_file(const std::string& path) { return sha256_hex(read_file_bytes(path)); }
+
+namespace {
+
+ojson matrix_rows(const Matrix& m) {
+  ojson rows = ojson::array();
+  for (size_t i = 0; i < m.rows(); ++i) {
+    ojson r = ojson::array();
+    for (size_t j = 0; j < m.cols(); ++j) r.push_back(m(i, j).str());
+    rows.push_back(std::move(r));
+  }
+  return rows;
+}
+
+ojson matrix_columns(const Matrix& m) { return matrix_rows(m.transpose()); }
+
+ojson or_null(const std::string& s) { return s.empty() ? ojson(nullptr) : ojson(s); }
+
+}  // namespace
+
+std::string certificate_json(const CertificateInputs& in, const CertifyResult& r) {
+  const Model& m = *in.model;
+  ojson c;
+  c["format"] = "zetabraid-certificate";
+  c["version"] = 1;
+  c["model"] = {{"file", in.model_path}, {"sha256", sha256_file(in.model_path)}, {"name", m.name},
+                {"unitary", m.claims_unitary}};
+  ojson rad = ojson::array();
+  for (int j = 0; j < m.field->radicand_count(); ++j) rad.push_back(m.field->radicand(j).str());
+  c["field"] = {{"conductor", m.field->conductor()}, {"radicands", rad}};
+  ojson anyons = ojson::array();
+  for (int a : in.anyons) anyons.push_back(m.labels[static_cast<size_t>(a)]);
+  ojson basis = ojson::array();
+  for (size_t i = 0; i < in.space->dimension(); ++i) basis.push_back(in.space->label(i));
+  c["space"] = {{"anyons", anyons},
+                {"total", m.labels[static_cast<size_t>(in.total)]},
+                {"dimension", in.space->dimension()},
+                {"basis", basis}};
+  c["keep"] = {{"kind", in.keep_kind},
+               {"spec", or_null(in.keep_spec)},
+               {"dimension", in.keep->kept()},
+               {"basis", matrix_columns(in.keep->basis)}};
+  c["word"] = {{"letters", in.word->canonical()}, {"length", in.word->size()}};
+  ojson leak;
+  leak["exact"] = r.leakage ? ojson(r.leakage->str()) : ojson(nullptr);
+  leak["ball"] = or_null(r.leakage_ball);
+  leak["upper"] = or_null(r.leakage_upper);
+  leak["lower"] = or_null(r.leakage_lower);
+  c["claim"] = {{"verdict", r.verdict}, {"leakage", leak}};
+  c["method"] = {{"name", method_name(r.method)}, {"precision_bits", r.precision}};
+  c["hints"] = {{"image", r.image ? matrix_rows(*r.image) : ojson(nullptr)},
+                {"action", r.action ? matrix_rows(*r.action) : ojson(nullptr)}};
+  return c.dump(2) + "\n";
+}
+
+}  // namespace zb
