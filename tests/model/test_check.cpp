@@ -1,0 +1,185 @@
+// The consistency checker: published models pass, damaged ones fail in the right check.
+#include <doctest/doctest.h>
+
+#include <fstream>
+#include <sstream>
+
+#include "support/helpers.hpp"
+#include "zetabraid/field/expression.hpp"
+#include "zetabraid/model/check.hpp"
+#include "zetabraid/model/families.hpp"
+#include "zetabraid/model/load.hpp"
+
+using namespace zb;
+
+namespace {
+std::string read(const std::string& rel) {
+  std::ifstream in(zbtest::source_dir() + "/" + rel);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+std::string replace_once(std::string s, const std::string& from, const std::string& to) {
+  size_t p = s.find(from);
+  REQUIRE(p != std::string::npos);
+  return s.replace(p, from.size(), to);
+}
+long failed(const CheckReport& r, const char* name) {
+  const CheckCount* c = r.find(name);
+  REQUIRE(c);
+  return c->failed;
+}
+}  // namespace
+
+TEST_CASE("Fibonacci F and R values are the published ones") {
+  Model m = load_model(zbtest::source_dir() + "/models/fibonacci.toml");
+  const FieldPtr& f = m.field;
+  // Kitaev, Ann. Phys. 321 (2006) 2, and Nayak et al., Rev. Mod. Phys. 80 (2008) 1083:
+  // F^{ttt}_t = [[phi^-1, phi^-1/2], [phi^-1/2, -phi^-1]], R^{tt}_1 = e^{-4 pi i/5}, R^{tt}_t = e^{3 pi i/5}.
+  Scalar phi = parse_expression("(1 + sqrt(5))/2", f);
+  Scalar inv = phi.inverse();
+  const Scalar* s = m.f_symbol(1, 1, 1, 1, 0, 1);
+  REQUIRE(s);
+  CHECK(*s * *s == inv);
+  CHECK(s->real_sign() > 0);
+  CHECK(*m.f_symbol(1, 1, 1, 1, 0, 0) == inv);
+  CHECK(*m.f_symbol(1, 1, 1, 1, 1, 1) == -inv);
+  CHECK(*m.r_symbol(1, 1, 0) == parse_expression("exp(-4*pi*i/5)", f));
+  CHECK(*m.r_symbol(1, 1, 1) == parse_expression("exp(3*pi*i/5)", f));
+  CheckReport r = check_model(m);
+  CHECK(r.ok);
+  CHECK(r.find("pentagon")->count > 0);
+  CHECK(r.find("hexagon")->count > 0);
+  CHECK(r.find("unitarity")->count > 0);
+}
+
+TEST_CASE("Ising F and R values are the published ones") {
+  Model m = load_model(zbtest::source_dir() + "/models/ising.toml");
+  const FieldPtr& f = m.field;
+  // Kitaev 2006 / Nayak et al. 2008: F^{sss}_s = (1/sqrt 2)[[1,1],[1,-1]], R^{ss}_1 = e^{-pi i/8},
+  // R^{ss}_psi = e^{3 pi i/8}, R^{s psi}_s = -i, R^{psi psi}_1 = -1.
+  Scalar h = parse_expression("1/sqrt(2)", f);
+  CHECK(*m.f_symbol(1, 1, 1, 1, 0, 0) == h);
+  CHECK(*m.f_symbol(1, 1, 1, 1, 2, 2) == -h);
+  CHECK(*m.f_symbol(1, 2, 1, 2, 1, 1) == Scalar(f, -1));
+  CHECK(*m.r_symbol(1, 1, 0) == parse_expression("exp(-pi*i/8)", f));
+  CHECK(*m.r_symbol(1, 1, 2) == parse_expression("exp(3*pi*i/8)", f));
+  CHECK(*m.r_symbol(1, 2, 1) == parse_expression("-i", f));
+  CHECK(*m.r_symbol(2, 2, 0) == Scalar(f, -1));
+  CHECK(check_model(m).ok);
+}
+
+TEST_CASE("every bundled model passes; the demo file fails") {
+  for (const char* name : {"fibonacci", "ising", "su2_k1", "su2_k2", "su2_k3", "su2_k4", "su2_k3_even",
+                           "su2_k4_cyclotomic", "z3", "z4", "z5", "toric_code", "three_fermion", "yang_lee"}) {
+    CAPTURE(name);
+    CHECK(check_model(load_model(zbtest::source_dir() + "/models/" + name + ".toml")).ok);
+  }
+  CheckReport r = check_model(load_model(zbtest::source_dir() + "/models/demo/broken_fibonacci.toml"));
+  CHECK(!r.ok);
+  CHECK(failed(r, "pentagon") > 0);
+}
+
+TEST_CASE("negative controls: a flipped sign, a wrong phase, a missing entry, a false unitarity claim") {
+  std::string fib = read("models/fibonacci.toml");
+  // Flipped sign of one off-diagonal entry: still unitary up to sign pattern? No: F F^dagger changes, and the
+  // pentagon fails.
+  {
+    Model m = parse_model(replace_once(fib, "[\"s\", \"-1/phi\"]", "[\"-s\", \"-1/phi\"]"), "flip");
+    CheckReport r = check_model(m);
+    CHECK(!r.ok);
+    CHECK(failed(r, "pentagon") > 0);
+    CHECK(failed(r, "f_invertible") == 0);
+    REQUIRE(!r.failures.empty());
+    CHECK(!r.failures[0].residual.empty());
+    CHECK(r.failures[0].residual_ball.find("+/-") != std::string::npos);
+  }
+  // Wrong phase: R^{tt}_t = e^{-3 pi i/5} (complex conjugate). Pentagons do not see R; the hexagons fail.
+  {
+    Model m = parse_model(replace_once(fib, "\"exp(3*pi*i/5)\"", "\"exp(-3*pi*i/5)\""), "phase");
+    CheckReport r = check_model(m);
+    CHECK(!r.ok);
+    CHECK(failed(r, "pentagon") == 0);
+    CHECK(failed(r, "hexagon") > 0);
+    CHECK(failed(r, "hexagon_reverse") > 0);
+    CHECK(failed(r, "unitarity") == 0);
+  }
+  // The mirror image (every R conjugated) is consistent again: both hexagons hold.
+  {
+    std::string t = replace_once(fib, "\"exp(3*pi*i/5)\"", "\"exp(-3*pi*i/5)\"");
+    t = replace_once(t, "\"exp(-4*pi*i/5)\"", "\"exp(4*pi*i/5)\"");
+    CHECK(check_model(parse_model(t, "mirror")).ok);
+  }
+  // Ising with F^{sigma psi sigma}_psi = +1 (Nayak et al. list -1): pentagon fails.
+  {
+    Model m = parse_model(replace_once(read("models/ising.toml"), "\"sigma psi sigma psi\" = \"-1\"",
+                                       "\"sigma psi sigma psi\" = \"1\""),
+                          "ising+");
+    CHECK(failed(check_model(m), "pentagon") > 0);
+  }
+  // A missing F entry (no f_unlisted): reported by f_admissible.
+  {
+    Model m = parse_model(replace_once(fib, "f_unlisted = \"1\"", ""), "missing");
+    CheckReport r = check_model(m);
+    CHECK(failed(r, "f_admissible") > 0);
+  }
+  // The cyclotomic gauge of SU(2)_3 is consistent but not unitary: claiming unitarity must fail.
+  {
+    Model m = make_su2(3, Su2Gauge::kCyclotomic);
+    CHECK(check_model(m).ok);
+    m.claims_unitary = true;
+    CheckReport r = check_model(m);
+    CHECK(failed(r, "unitarity") > 0);
+    CHECK(failed(r, "pentagon") == 0);
+  }
+  // A non-admissible nonzero F entry.
+  {
+    std::string t = fib + "\n";
+    t = replace_once(t, "[R]", "\"t t t 1 t 1\" = \"1\"\n\n[R]");
+    CheckReport r = check_model(parse_model(t, "extra"));
+    CHECK(failed(r, "f_admissible") == 1);
+  }
+  // Broken fusion rules: t x t = t only (no dual).
+  {
+    std::string t = replace_once(fib, "\"t t\" = [\"1\", \"t\"]\n\n[F]", "\"t t\" = [\"t\"]\n\n[F]");
+    t = replace_once(t, "\"t t t t\" = [[\"1/phi\", \"s\"],\n             [\"s\", \"-1/phi\"]]", "");
+    t = replace_once(t, "\"t t\" = [\"exp(-4*pi*i/5)\", \"exp(3*pi*i/5)\"]", "\"t t\" = \"1\"");
+    CheckReport r = check_model(parse_model(t, "nodual"));
+    CHECK(failed(r, "fusion_duals") > 0);
+  }
+}
+
+TEST_CASE("failures are reported deterministically, whatever the thread count") {
+  Model m = make_su2(4);
+  // damage one pentagon-relevant entry
+  const Scalar* v = m.f_symbol(1, 1, 1, 1, 0, 0);
+  REQUIRE(v);
+  m.set_f_symbol(1, 1, 1, 1, 0, 0, -*v);
+  CheckOptions one, two;
+  one.threads = 1;
+  two.threads = 2;
+  CheckReport a = check_model(m, one), b = check_model(m, two);
+  REQUIRE(a.failures.size() == b.failures.size());
+  CHECK(a.failures.size() > 0);
+  for (size_t i = 0; i < a.failures.size(); ++i) {
+    CHECK(a.failures[i].where == b.failures[i].where);
+    CHECK(a.failures[i].residual == b.failures[i].residual);
+  }
+  CHECK(a.find("pentagon")->failed == b.find("pentagon")->failed);
+}
+
+TEST_CASE("model check CLI: exit codes and the JSON shape") {
+  std::string dir = zbtest::source_dir();
+  auto r = zbtest::run(zbtest::cli() + " model check --json " + dir + "/models/fibonacci.toml");
+  CHECK(r.status == 0);
+  CHECK(r.out.find("\"ok\":true") != std::string::npos);
+  CHECK(r.out.find("\"pentagon\":{\"count\":50,\"failed\":0}") != std::string::npos);
+  CHECK(r.out.find("\"failures\":[]") != std::string::npos);
+  r = zbtest::run(zbtest::cli() + " model check --json " + dir + "/models/demo/broken_fibonacci.toml");
+  CHECK(r.status == 1);
+  CHECK(r.out.find("\"ok\":false") != std::string::npos);
+  CHECK(r.out.find("\"residual\":{\"exact\"") != std::string::npos);
+  r = zbtest::run(zbtest::cli() + " model check " + dir + "/models/demo/broken_fibonacci.toml");
+  CHECK(r.status == 1);
+  CHECK(r.out.find("FAILED pentagon") != std::string::npos);
+}
