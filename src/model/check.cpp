@@ -78,7 +78,11 @@ struct Tables {
   std::vector<std::vector<int>> ch;
   std::vector<std::complex<double>> fd, rd, rid;  // double images (benchmarks only)
 
-  explicit Tables(const Model& m) : M(m), n(m.label_count()), F(m.field), nf(m.field->cyclotomic()->nf()) {
+  bool generic;  // antic's generic representation (degree > 2): lazy reduction in the kernels
+
+  explicit Tables(const Model& m)
+      : M(m), n(m.label_count()), F(m.field), nf(m.field->cyclotomic()->nf()),
+        generic(!(nf->flag & (NF_LINEAR | NF_QUADRATIC))) {
     size_t n6 = 1;
     for (int i = 0; i < 6; ++i) n6 *= static_cast<size_t>(n);
     dense = n <= 14;
@@ -161,8 +165,34 @@ struct Worker {
     if (it != rad.end()) return it->second;
     return rad.emplace(s, T.F->radicand_product(s)).first->second;
   }
-  // out += x * y
+  // out += x * y. For generic number fields (degree > 2) the products are left unreduced and uncanonicalised
+  // (sums of them stay exact polynomials); finish() reduces modulo Phi_N once per accumulated value.
   void addmul(Acc& out, const Acc& x, const Acc& y) {
+    const bool lazy = T.generic;
+    for (size_t i = 0; i < x.n; ++i)
+      for (size_t j = 0; j < y.n; ++j) {
+        RadicalMask common = x.m[i] & y.m[j];
+        if (common) {
+          nf_elem_mul(t2.raw(), x.c[i].raw(), radprod(common).raw(), T.nf);
+          if (lazy)
+            nf_elem_mul_red(t1.raw(), t2.raw(), y.c[j].raw(), T.nf, 0);
+          else
+            nf_elem_mul(t1.raw(), t2.raw(), y.c[j].raw(), T.nf);
+        } else if (lazy) {
+          nf_elem_mul_red(t1.raw(), x.c[i].raw(), y.c[j].raw(), T.nf, 0);
+        } else {
+          nf_elem_mul(t1.raw(), x.c[i].raw(), y.c[j].raw(), T.nf);
+        }
+        nf_elem_struct* s = out.slot(x.m[i] ^ y.m[j]);
+        if (lazy)
+          fmpq_poly_add_can(NF_ELEM(s), NF_ELEM(s), NF_ELEM(t1.raw()), 0);
+        else
+          nf_elem_add(s, s, t1.raw(), T.nf);
+      }
+  }
+  // out = x * y, reduced (used as a factor again).
+  void mul(Acc& out, const Acc& x, const Acc& y) {
+    out.clear();
     for (size_t i = 0; i < x.n; ++i)
       for (size_t j = 0; j < y.n; ++j) {
         nf_elem_mul(t1.raw(), x.c[i].raw(), y.c[j].raw(), T.nf);
@@ -175,14 +205,22 @@ struct Worker {
         nf_elem_add(s, s, t1.raw(), T.nf);
       }
   }
-  void mul(Acc& out, const Acc& x, const Acc& y) {
-    out.clear();
-    addmul(out, x, y);
-  }
   void sub(Acc& out, const Acc& x) {
     for (size_t i = 0; i < x.n; ++i) {
       nf_elem_struct* s = out.slot(x.m[i]);
-      nf_elem_sub(s, s, x.c[i].raw(), T.nf);
+      if (T.generic)
+        fmpq_poly_sub_can(NF_ELEM(s), NF_ELEM(s), NF_ELEM(x.c[i].raw()), 0);
+      else
+        nf_elem_sub(s, s, x.c[i].raw(), T.nf);
+    }
+  }
+  // Brings every coefficient of an accumulated value back to canonical reduced form.
+  void finish(Acc& v) {
+    if (!T.generic) return;
+    for (size_t i = 0; i < v.n; ++i) {
+      fmpq_poly_canonicalise(NF_ELEM(v.c[i].raw()));
+      nf_elem_reduce(v.c[i].raw(), T.nf);
+      nf_elem_canonicalise(v.c[i].raw(), T.nf);
     }
   }
 };
@@ -312,8 +350,10 @@ void pentagon_block(const Tables& T, const PentagonBlock& B, Worker& w, BlockRes
         const Acc* y1 = T.fv(f, c, d, e, g, l);
         const Acc* y2 = T.fv(a, b, l, e, f, k);
         lhs.clear();
-        if (y1 && y2) w.addmul(lhs, *y1, *y2);
+        lhs.clear();
+        if (y1 && y2) w.addmul(lhs, *y1, *y2);  // unreduced, like acc[j]: one reduction per equation
         w.sub(lhs, acc[j]);
+        w.finish(lhs);
         ++r.count;
         if (!lhs.is_zero()) {
           ++r.failed;
@@ -368,7 +408,7 @@ void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, Worker& w, 
       const Acc* r2 = inverse ? T.riv(b, c, g) : T.rv(c, b, g);
       if (r1 && f1 && r2) {
         w.mul(t, *r1, *f1);
-        w.addmul(lhs, t, *r2);
+        w.mul(lhs, t, *r2);
       }
       // minus the right side
       for (int f : T.chan(a, b)) {
@@ -380,6 +420,7 @@ void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, Worker& w, 
         w.mul(u, t, *x3);
         w.sub(lhs, u);
       }
+      w.finish(lhs);
       ++r.count;
       if (!lhs.is_zero()) {
         ++r.failed;
