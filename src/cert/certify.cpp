@@ -150,6 +150,34 @@ bool parse_decimal(arb_t x, const std::string& s, long prec) {
   return true;
 }
 
+bool interval_bounds(const std::string& ball, long prec, std::string* upper, std::string* lower) {
+  arb_t b;
+  arb_init(b);
+  if (arb_set_str(b, ball.c_str(), 128) != 0) {
+    arb_clear(b);
+    throw MathError("malformed enclosure " + ball);
+  }
+  arf_t u, floor_bound;
+  arf_init(u);
+  arf_init(floor_bound);
+  arb_get_ubound_arf(u, b, 128);
+  // never state "leakage <= 0": the bound is at least 2^-prec
+  arf_one(floor_bound);
+  arf_mul_2exp_si(floor_bound, floor_bound, -prec);
+  if (arf_cmp(u, floor_bound) < 0) arf_set(u, floor_bound);
+  *upper = decimal_upper(u, 6);
+  bool positive = arb_is_positive(b);
+  lower->clear();
+  if (positive) {
+    arb_get_lbound_arf(u, b, 128);
+    *lower = decimal_lower(u, 6);
+  }
+  arf_clear(u);
+  arf_clear(floor_bound);
+  arb_clear(b);
+  return positive;
+}
+
 namespace {
 
 // Rows where the k x k submatrix of V is invertible (V has full column rank).
@@ -351,19 +379,8 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
   }
   res.precision = prec;
   res.leakage_ball = ball_str(leak, 20);
-  arf_t u;
-  arf_init(u);
-  arb_get_ubound_arf(u, leak, prec);
-  if (arf_sgn(u) < 0) arf_zero(u);
-  res.leakage_upper = decimal_upper(u, 6);
-  if (arb_is_positive(leak)) {
-    arb_get_lbound_arf(u, leak, prec);
-    res.leakage_lower = decimal_lower(u, 6);
-    res.verdict = "leaks";
-  } else {
-    res.verdict = "leakage-bounded";
-  }
-  arf_clear(u);
+  res.verdict = interval_bounds(res.leakage_ball, prec, &res.leakage_upper, &res.leakage_lower) ? "leaks"
+                                                                                                : "leakage-bounded";
   arb_clear(leak);
   acb_mat_clear(img);
   return res;

@@ -64,7 +64,7 @@ std::string export_gp(const CertificateInputs& in, const CertifyResult& r) {
   for (int j = 1; j <= nr; ++j) e = fmt::format("Mod({}, s{}^2 - ({}))", e, j, cyclo_gp(f->radicand(j - 1)));
   g += "E(p) = " + e + ";\n";
   g += "cj(x) = E(subst(liftall(x), z, z^(NC-1)));  \\\\ complex conjugation (fixes every s_j)\n";
-  g += "ct(M) = matrix(#M[1,], #M, i, j, cj(M[j, i]));  \\\\ conjugate transpose\n";
+  g += "ct(M) = my(sz = matsize(M)); matrix(sz[2], sz[1], i, j, cj(M[j, i]));  \\\\ conjugate transpose\n";
   g += "num(x) = my(p = liftall(x)); p = subst(p, z, exp(2*Pi*I/NC));";
   for (int j = 1; j <= nr; ++j)
     g += fmt::format(" p = subst(p, s{0}, sqrt(subst({1}, z, exp(2*Pi*I/NC))));", j, cyclo_gp(f->radicand(j - 1)));
@@ -96,7 +96,7 @@ fmat(a,b,c,d) = {
   [rs, cs, matrix(#rs, #cs, i, j, fv(a,b,c,d,rs[i],cs[j]))];
 }
 \\ matrix of sigma_k (k > 0) or sigma_|k|^-1 (k < 0) on V(an; tot); returns [matrix, new labels]
-sigma(an, tot, k) = {
+gen(an, tot, k) = {
   my(i = abs(k), T = trees(an, tot), bn = an, b = an[i], c = an[i+1]);
   bn[i] = c; bn[i+1] = b;
   my(U = trees(bn, tot), idx = Map(), S = matrix(#U, #T, p, q, E(0)));
@@ -132,10 +132,11 @@ sigma(an, tot, k) = {
   g += fmt::format("METHOD = \"{}\";\n", method_name(r.method));
   g += R"GP(ok = 1; why = "";
 fail(s) = if (ok, ok = 0; why = s);
+{
 if (#trees(AN, TOT) != DIM, fail("dimension of the fusion space differs"));
 cache = Map(); W = V; lab = AN;
 for (t = 1, #WORD, my(key = [lab, WORD[t]], g);
-  if (!mapisdefined(cache, key, &g), g = sigma(lab, TOT, WORD[t]); mapput(cache, key, g));
+  if (!mapisdefined(cache, key, &g), g = gen(lab, TOT, WORD[t]); mapput(cache, key, g));
   W = g[1] * W; lab = g[2]);
 if (lab != AN, fail("the word does not return the anyons to their order"));
 leakfree = (matrank(concat(V, W)) == KK);
@@ -154,6 +155,7 @@ if (UNITARY,
     if (VERDICT == "leakage-bounded" && LOWER != 0, fail("bad lower bound"))));
 if (ok, print("zetabraid-gp: verified: ", VERDICT, " (", METHOD, ", ", #WORD, " letters)"),
         print("zetabraid-gp: REJECTED: ", why));
+}
 )GP";
   return g;
 }

@@ -261,9 +261,10 @@ void add_braid_commands(CLI::App& app, Action& action) {
     c->add_option("--out", o->out, "write a certificate (JSON, docs/certificate-format.md)");
     c->add_option("--export-gp", o->gp, "write a self-contained PARI/GP script re-checking the claim");
     c->add_flag("--json", o->json, "one JSON object");
-    c->callback([o, &action] {
-      action = [o] {
-        if (o->word.empty() && o->word_file.empty()) throw InputError("give the braid word with --word or --word-file");
+    c->callback([o, c, &action] {
+      action = [o, c] {
+        if (!c->count("--word") && o->word_file.empty())
+          throw InputError("give the braid word with --word or --word-file");
         if (!o->keep.empty() && !o->keep_file.empty()) throw InputError("give --keep or --keep-file, not both");
         CertifyOptions opt;
         opt.method = parse_method(o->method);
@@ -272,10 +273,10 @@ void add_braid_commands(CLI::App& app, Action& action) {
         std::vector<int> an = parse_anyons(m, o->anyons);
         int total = parse_label(m, o->total, "total charge");
         Word w = read_word(o->word, o->word_file);
-        w.check_range(static_cast<int>(an.size()));
         BraidGenerators g(m, total);
         const FusionSpace& sp = g.space(an);
         sp.require_nonzero();
+        w.check_range(static_cast<int>(an.size()));
         Subspace keep = whole_space(sp);
         std::string kind = "all", spec;
         if (!o->keep.empty()) {

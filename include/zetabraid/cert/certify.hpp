@@ -60,6 +60,10 @@ ExactLeak exact_leakage(const Subspace& keep, const Matrix& image, bool unitary)
 std::string decimal_upper(const arf_t x, int digits = 6);
 /// A decimal string that is <= x (x >= 0).
 std::string decimal_lower(const arf_t x, int digits = 6);
+/// The stated bounds of an interval result, derived from its printed enclosure `ball` alone (so a checker can
+/// re-derive them): upper = max(ub(ball), 2^-prec) rounded up to 6 digits; lower = lb(ball) rounded down when
+/// the ball is positive (returns true: the word provably leaks), else empty.
+bool interval_bounds(const std::string& ball, long prec, std::string* upper, std::string* lower);
 /// Parses a decimal string "d.ddde-N" (as written above) exactly into x. Returns false if malformed.
 bool parse_decimal(arb_t x, const std::string& s, long prec);
 
