@@ -79,10 +79,15 @@ struct Tables {
   std::vector<std::complex<double>> fd, rd, rid;  // double images (benchmarks only)
 
   bool generic;  // antic's generic representation (degree > 2): lazy reduction in the kernels
+  fmpz_t scale;  // F values are stored multiplied by this integer
+  ~Tables() { fmpz_clear(scale); }
+  Tables(const Tables&) = delete;
+  Tables& operator=(const Tables&) = delete;
 
   explicit Tables(const Model& m)
       : M(m), n(m.label_count()), F(m.field), nf(m.field->cyclotomic()->nf()),
         generic(!(nf->flag & (NF_LINEAR | NF_QUADRATIC))) {
+    fmpz_init(scale);
     size_t n6 = 1;
     for (int i = 0; i < 6; ++i) n6 *= static_cast<size_t>(n);
     dense = n <= 14;
@@ -96,6 +101,17 @@ struct Tables {
         fdense[idx6(key[0], key[1], key[2], key[3], key[4], key[5])] = id;
       else
         fsparse[idx6(key[0], key[1], key[2], key[3], key[4], key[5])] = id;
+    }
+    // Scale every F value by the common denominator D of its coefficients, so that the kernels work with
+    // integral polynomials (no rational content to maintain); the equations are rescaled accordingly
+    // (pentagon: D * (G G) = sum G G G; hexagon: D * (R G R) = sum G R G, with G = D F).
+    fmpz_one(scale);
+    if (generic) {
+      for (const Acc& v : fvals)
+        for (size_t i = 0; i < v.n; ++i) fmpz_lcm(scale, scale, fmpq_poly_denref(NF_ELEM(v.c[i].raw())));
+      if (fmpz_bits(scale) > 64) fmpz_one(scale);
+      for (Acc& v : fvals)
+        for (size_t i = 0; i < v.n; ++i) nf_elem_scalar_mul_fmpz(v.c[i].raw(), v.c[i].raw(), scale, nf);
     }
     ridx.assign(static_cast<size_t>(n) * n * n, -1);
     for (const auto& [key, v] : M.r_symbols()) {
@@ -147,7 +163,8 @@ struct Tables {
       acb_clear(b);
       return z;
     };
-    for (const Acc& v : fvals) fd.push_back(img(v));
+    double sc = fmpz_get_d(scale);
+    for (const Acc& v : fvals) fd.push_back(img(v) / sc);
     for (const Acc& v : rvals) rd.push_back(img(v));
     for (const Acc& v : rinv) rid.push_back(img(v));
   }
@@ -213,6 +230,28 @@ struct Worker {
       else
         nf_elem_sub(s, s, x.c[i].raw(), T.nf);
     }
+  }
+  // v *= the F scale (exact).
+  void scale(Acc& v) {
+    if (fmpz_is_one(T.scale)) return;
+    for (size_t i = 0; i < v.n; ++i) {
+      if (T.generic)
+        fmpq_poly_scalar_mul_fmpz(NF_ELEM(v.c[i].raw()), NF_ELEM(v.c[i].raw()), T.scale);
+      else
+        nf_elem_scalar_mul_fmpz(v.c[i].raw(), v.c[i].raw(), T.scale, T.nf);
+    }
+  }
+  // The true residual from a scaled one: divide by scale^power.
+  Scalar unscale(const Acc& v, int power) const {
+    Scalar r = v.to_scalar(T.F);
+    if (fmpz_is_one(T.scale)) return r;
+    fmpq_t q;
+    fmpq_init(q);
+    fmpz_pow_ui(fmpq_denref(q), T.scale, static_cast<ulong>(power));
+    fmpz_one(fmpq_numref(q));
+    Scalar f(T.F, Cyclo(T.F->cyclotomic(), q));
+    fmpq_clear(q);
+    return r * f;
   }
   // Brings every coefficient of an accumulated value back to canonical reduced form.
   void finish(Acc& v) {
@@ -352,6 +391,7 @@ void pentagon_block(const Tables& T, const PentagonBlock& B, Worker& w, BlockRes
         lhs.clear();
         lhs.clear();
         if (y1 && y2) w.addmul(lhs, *y1, *y2);  // unreduced, like acc[j]: one reduction per equation
+        w.scale(lhs);
         w.sub(lhs, acc[j]);
         w.finish(lhs);
         ++r.count;
@@ -359,7 +399,7 @@ void pentagon_block(const Tables& T, const PentagonBlock& B, Worker& w, BlockRes
           ++r.failed;
           if (record && r.failures.size() < opt.max_failures) {
             const Model& M = T.M;
-            Scalar res = lhs.to_scalar(T.F);
+            Scalar res = w.unscale(lhs, 3);
             CheckFailure fl;
             fl.check = "pentagon";
             fl.where = fmt::format("a={} b={} c={} d={} e={} f={} g={} k={} l={}", lab(M, a), lab(M, b), lab(M, c),
@@ -409,6 +449,7 @@ void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, Worker& w, 
       if (r1 && f1 && r2) {
         w.mul(t, *r1, *f1);
         w.mul(lhs, t, *r2);
+        w.scale(lhs);
       }
       // minus the right side
       for (int f : T.chan(a, b)) {
@@ -426,7 +467,7 @@ void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, Worker& w, 
         ++r.failed;
         if (record && r.failures.size() < opt.max_failures) {
           const Model& M = T.M;
-          Scalar res = lhs.to_scalar(T.F);
+          Scalar res = w.unscale(lhs, 2);
           CheckFailure fl;
           fl.check = inverse ? "hexagon_reverse" : "hexagon";
           fl.where = fmt::format("a={} b={} c={} d={} e={} g={}", lab(M, a), lab(M, b), lab(M, c), lab(M, d),
