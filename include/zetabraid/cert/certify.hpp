@@ -26,7 +26,7 @@ struct CertifyOptions {
   long precision = 0;              ///< interval working precision in bits; 0 = automatic (raised until decided)
   long target_bits = 64;           ///< automatic precision: raise until the leakage radius is below 2^-target_bits
   long max_precision = 1 << 16;    ///< cap of the automatic precision
-  size_t exact_budget = 400'000;   ///< auto: exact when letters * dimension <= budget, else interval
+  size_t exact_budget = 2'000'000; ///< auto: exact when letters * dimension * kept <= budget, else interval
 };
 
 struct CertifyResult {
