@@ -39,7 +39,7 @@ std::string matrix_gp(const Matrix& m) {
     if (i) s += "; ";
     for (size_t j = 0; j < m.cols(); ++j) s += (j ? ", " : "") + scalar_gp(m(i, j));
   }
-  return s + "]";
+  return "Mat(" + s + "])";  // Mat(): a 1 x k or 1 x 1 literal would otherwise be a vector
 }
 
 }  // namespace
