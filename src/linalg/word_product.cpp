@@ -1,36 +1,261 @@
-// Straightforward reference implementation (left to right). To be replaced by the fast engines.
+// Exact word products: product tree over integer-polynomial matrices (see word_product.hpp).
 #include "zetabraid/linalg/word_product.hpp"
 
+#include <fmt/format.h>
+
+#include <exception>
+#include <map>
+#include <mutex>
+#include <thread>
+#include <unordered_map>
+
 #include "zetabraid/error.hpp"
+#include "zetabraid/linalg/poly_matrix.hpp"
 
 namespace zb {
 
-Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start) {
+namespace {
+
+void check_shapes(const std::vector<const Matrix*>& letters, const Matrix* start) {
+  for (size_t i = 0; i < letters.size(); ++i) {
+    if (!letters[i]) throw MathError("null letter in a word product");
+    if (letters[i]->field() != letters.front()->field()) throw MathError("letters of one word from different fields");
+    if (i > 0 && letters[i]->cols() != letters[i - 1]->rows())
+      throw MathError(fmt::format("letter {} ({}x{}) does not compose with letter {} ({}x{})", i + 1, letters[i]->rows(),
+                                  letters[i]->cols(), i, letters[i - 1]->rows(), letters[i - 1]->cols()));
+  }
+  if (start && !letters.empty()) {
+    if (start->field() != letters.front()->field()) throw MathError("start matrix from a different field");
+    if (start->rows() != letters.front()->cols())
+      throw MathError(fmt::format("start matrix {}x{} does not compose with the first letter ({}x{})", start->rows(),
+                                  start->cols(), letters.front()->rows(), letters.front()->cols()));
+  }
+}
+
+// A run of one letter: leaf index and exponent.
+struct Token {
+  size_t leaf;
+  unsigned long exp;
+  bool operator==(const Token& o) const { return leaf == o.leaf && exp == o.exp; }
+};
+
+constexpr std::uint64_t kHashMod = (std::uint64_t{1} << 61) - 1;
+std::uint64_t mulmod61(std::uint64_t a, std::uint64_t b) {
+  unsigned __int128 z = static_cast<unsigned __int128>(a) * b;
+  std::uint64_t lo = static_cast<std::uint64_t>(z & kHashMod), hi = static_cast<std::uint64_t>(z >> 61);
+  std::uint64_t s = lo + hi;
+  return s >= kHashMod ? s - kHashMod : s;
+}
+
+class ExactTree {
+ public:
+  ExactTree(const PolyContext& ctx, const std::vector<PolyMatrix>& leaves, const ProductOptions& opt)
+      : ctx_(ctx), leaves_(leaves), opt_(opt) {}
+
+  // Product of a token sequence (application order).
+  PolyMatrix product(const std::vector<Token>& seq) {
+    if (seq.empty()) throw MathError("empty token sequence");
+    if (opt_.share_repeats && seq.size() >= 4) {
+      // Smallest period p of seq (prefix function): seq = w^q u with |w| = p, u a prefix of w.
+      size_t n = seq.size();
+      std::vector<size_t> pi(n, 0);
+      for (size_t i = 1; i < n; ++i) {
+        size_t k = pi[i - 1];
+        while (k > 0 && !(seq[i] == seq[k])) k = pi[k - 1];
+        if (seq[i] == seq[k]) ++k;
+        pi[i] = k;
+      }
+      size_t p = n - pi[n - 1];
+      if (p <= n / 2) {
+        std::vector<Token> w(seq.begin(), seq.begin() + static_cast<long>(p));
+        size_t q = n / p, r = n % p;
+        PolyMatrix pw = product(w);
+        PolyMatrix res = PolyMatrix::pow(pw, q, ctx_);
+        if (r) {
+          std::vector<Token> u(seq.begin(), seq.begin() + static_cast<long>(r));
+          res = PolyMatrix::mul(product(u), res, ctx_);
+        }
+        return res;
+      }
+    }
+    Range rg(*this, seq);
+    return rg.run();
+  }
+
+  const PolyMatrix& power(const Token& t) {
+    {
+      std::lock_guard<std::mutex> lock(mu_);
+      auto it = powers_.find({t.leaf, t.exp});
+      if (it != powers_.end()) return *it->second;
+    }
+    auto pm = std::make_unique<PolyMatrix>(t.exp == 1 ? leaves_[t.leaf] : PolyMatrix::pow(leaves_[t.leaf], t.exp, ctx_));
+    std::lock_guard<std::mutex> lock(mu_);
+    return *powers_.emplace(std::make_pair(t.leaf, t.exp), std::move(pm)).first->second;
+  }
+
+ private:
+  // Balanced tree over one token sequence, with repeated subtrees computed once.
+  struct Range {
+    ExactTree& t;
+    const std::vector<Token>& seq;
+    std::vector<std::uint64_t> h, pw;  // prefix hashes and powers of the base
+    std::map<std::pair<size_t, std::uint64_t>, size_t> count;  // (length, hash) -> occurrences in the tree
+    std::map<std::pair<size_t, std::uint64_t>, std::pair<size_t, std::shared_ptr<PolyMatrix>>> memo;  // -> (lo, value)
+    std::mutex mu;
+    int spawn_depth = 0;
+
+    Range(ExactTree& tree, const std::vector<Token>& s) : t(tree), seq(s) {
+      size_t n = seq.size();
+      h.assign(n + 1, 0);
+      pw.assign(n + 1, 1);
+      const std::uint64_t base = 1000003;
+      for (size_t i = 0; i < n; ++i) {
+        std::uint64_t v = (static_cast<std::uint64_t>(seq[i].leaf) * 0x9E3779B97F4A7C15ULL) ^ (seq[i].exp * 0xC2B2AE3D27D4EB4FULL);
+        v %= kHashMod;
+        h[i + 1] = (mulmod61(h[i], base) + v) % kHashMod;
+        pw[i + 1] = mulmod61(pw[i], base);
+      }
+      if (t.opt_.share_repeats) count_nodes(0, n);
+      for (int th = t.opt_.threads; th > 1; th /= 2) ++spawn_depth;
+    }
+    std::pair<size_t, std::uint64_t> key(size_t lo, size_t hi) const {
+      std::uint64_t x = (h[hi] + kHashMod - mulmod61(h[lo], pw[hi - lo])) % kHashMod;
+      return {hi - lo, x};
+    }
+    void count_nodes(size_t lo, size_t hi) {
+      if (hi - lo < 2) return;
+      ++count[key(lo, hi)];
+      size_t mid = lo + (hi - lo) / 2;
+      count_nodes(lo, mid);
+      count_nodes(mid, hi);
+    }
+    bool same(size_t a, size_t b, size_t len) const {
+      for (size_t i = 0; i < len; ++i)
+        if (!(seq[a + i] == seq[b + i])) return false;
+      return true;
+    }
+    PolyMatrix run() { return node(0, seq.size(), 0); }
+
+    PolyMatrix node(size_t lo, size_t hi, int depth) {
+      if (hi - lo == 1) return t.power(seq[lo]);
+      auto k = key(lo, hi);
+      bool shared = t.opt_.share_repeats && count[k] > 1;
+      if (shared) {
+        std::lock_guard<std::mutex> lock(mu);
+        auto it = memo.find(k);
+        if (it != memo.end() && same(it->second.first, lo, hi - lo)) return *it->second.second;
+      }
+      size_t mid = lo + (hi - lo) / 2;
+      PolyMatrix left, right;
+      if (depth < spawn_depth && hi - lo >= 32) {
+        std::exception_ptr err;
+        std::thread th([&] {
+          try {
+            left = node(lo, mid, depth + 1);
+          } catch (...) {
+            err = std::current_exception();
+          }
+        });
+        try {
+          right = node(mid, hi, depth + 1);
+        } catch (...) {
+          th.join();
+          throw;
+        }
+        th.join();
+        if (err) std::rethrow_exception(err);
+      } else {
+        left = node(lo, mid, depth + 1);
+        right = node(mid, hi, depth + 1);
+      }
+      PolyMatrix res = PolyMatrix::mul(right, left, t.ctx_);  // later letters act last (on the left)
+      if (shared) {
+        std::lock_guard<std::mutex> lock(mu);
+        memo.emplace(k, std::make_pair(lo, std::make_shared<PolyMatrix>(res)));
+      }
+      return res;
+    }
+  };
+
+  const PolyContext& ctx_;
+  const std::vector<PolyMatrix>& leaves_;
+  const ProductOptions& opt_;
+  std::mutex mu_;
+  std::map<std::pair<size_t, unsigned long>, std::unique_ptr<PolyMatrix>> powers_;
+};
+
+// Distinct letters converted once; the word as runs of one letter.
+struct Converted {
+  std::vector<PolyMatrix> leaves;
+  std::vector<Token> tokens;
+};
+
+Converted convert(const std::vector<const Matrix*>& letters, const PolyContext& ctx, bool runs) {
+  Converted c;
+  std::unordered_map<const Matrix*, size_t> index;
+  for (const Matrix* m : letters) {
+    auto it = index.find(m);
+    size_t leaf;
+    if (it == index.end()) {
+      leaf = c.leaves.size();
+      index.emplace(m, leaf);
+      c.leaves.push_back(PolyMatrix::from_matrix(*m, ctx));
+    } else {
+      leaf = it->second;
+    }
+    if (runs && !c.tokens.empty() && c.tokens.back().leaf == leaf)
+      ++c.tokens.back().exp;
+    else
+      c.tokens.push_back({leaf, 1});
+  }
+  return c;
+}
+
+}  // namespace
+
+Matrix word_product_naive(const std::vector<const Matrix*>& letters, const Matrix& start) {
+  check_shapes(letters, &start);
   Matrix acc = start;
   for (const Matrix* m : letters) acc = *m * acc;
   return acc;
 }
 
-Matrix word_product(const std::vector<const Matrix*>& letters) {
+Matrix word_product(const std::vector<const Matrix*>& letters) { return word_product(letters, ProductOptions{}); }
+
+Matrix word_product(const std::vector<const Matrix*>& letters, const ProductOptions& opt) {
   if (letters.empty()) throw MathError("empty word: no matrix shape to return");
-  return word_product_columns(letters, Matrix::identity(letters.front()->field(), letters.front()->cols()));
+  check_shapes(letters, nullptr);
+  PolyContext ctx(letters.front()->field());
+  Converted c = convert(letters, ctx, opt.share_repeats);
+  ExactTree tree(ctx, c.leaves, opt);
+  return tree.product(c.tokens).to_matrix(ctx);
 }
 
-void word_product_ball(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec) {
-  acb_mat_t acc, g, t;
-  acb_mat_init(acc, start.rows(), start.cols());
-  start.ball(acc, prec);
-  for (const Matrix* m : letters) {
-    acb_mat_init(g, m->rows(), m->cols());
-    m->ball(g, prec);
-    acb_mat_init(t, m->rows(), start.cols());
-    acb_mat_mul(t, g, acc, prec);
-    acb_mat_swap(acc, t);
-    acb_mat_clear(t);
-    acb_mat_clear(g);
+Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start) {
+  return word_product_columns(letters, start, ProductOptions{});
+}
+
+Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start, const ProductOptions& opt) {
+  check_shapes(letters, &start);
+  if (letters.empty()) return start;
+  PolyContext ctx(start.field());
+  size_t dim = start.rows(), k = start.cols();
+  for (const Matrix* m : letters) dim = std::max(dim, m->rows());
+  PolyMatrix s = PolyMatrix::from_matrix(start, ctx);
+  if (dim > opt.columns_ratio * k && dim > opt.columns_min_dimension) {
+    // Column-wise: acc <- L acc, visiting only the nonzero entries of each letter.
+    Converted c = convert(letters, ctx, false);
+    std::vector<PolyMatrix::Nonzeros> nz;
+    for (const auto& l : c.leaves) nz.push_back(l.nonzeros());
+    PolyMatrix acc = std::move(s);
+    for (const Token& t : c.tokens) acc = PolyMatrix::mul_sparse(c.leaves[t.leaf], nz[t.leaf], acc, ctx);
+    return acc.to_matrix(ctx);
   }
-  acb_mat_set(out, acc);
-  acb_mat_clear(acc);
+  Converted c = convert(letters, ctx, opt.share_repeats);
+  ExactTree tree(ctx, c.leaves, opt);
+  PolyMatrix p = tree.product(c.tokens);
+  if (start.is_identity()) return p.to_matrix(ctx);
+  return PolyMatrix::mul(p, s, ctx).to_matrix(ctx);
 }
 
 }  // namespace zb

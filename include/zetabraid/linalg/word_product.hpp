@@ -2,6 +2,16 @@
 // Letters are given in application order: the result is letters.back() * ... * letters.front() * start.
 // Implementations may use product trees, integer-polynomial kernels, modular images and ball arithmetic;
 // every function here returns exactly what its naive definition says (tests compare against that).
+//
+// Engines (src/linalg/word_product.cpp):
+//  * exact: letters are converted once per distinct pointer to integer-polynomial matrices (PolyMatrix, common
+//    denominator, one part per radical mask); runs of one letter are binary powers, a periodic word w^q u is
+//    computed as P(u) * P(w)^q, repeated subtrees are computed once, and the rest is a balanced product tree
+//    (bit sizes of the two factors stay equal, so big-integer multiplication is used where it is fast).
+//    word_product_columns on a big space (dimension well above the number of columns) instead applies the
+//    letters one by one to the columns only, visiting only the nonzero entries of each generator.
+//  * ball: see word_product_ball below.
+//  * modular images: linalg/modular.hpp.
 #pragma once
 #include <vector>
 
@@ -9,14 +19,65 @@
 
 namespace zb {
 
+struct ProductOptions {
+  /// Worker threads for the product tree (1 = none). Results are identical at any thread count.
+  int threads = 1;
+  /// word_product_columns: apply letters column-wise (sparse) when dimension > columns_ratio * columns and
+  /// dimension > columns_min_dimension; otherwise product tree then multiply the start.
+  size_t columns_ratio = 4;
+  size_t columns_min_dimension = 24;
+  /// Detect runs / periodic words and compute the repeated part once (off only for tests and measurements).
+  bool share_repeats = true;
+};
+
 /// Exact product L_n ... L_1 (application order). Shapes must compose.
 Matrix word_product(const std::vector<const Matrix*>& letters);
+Matrix word_product(const std::vector<const Matrix*>& letters, const ProductOptions& opt);
 
 /// Exact L_n ... L_1 * start: only the columns of `start` are propagated (cheap for few columns).
 Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start);
+Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start, const ProductOptions& opt);
+
+/// Straightforward left-to-right exact product (the reference the fast engines are tested against).
+Matrix word_product_naive(const std::vector<const Matrix*>& letters, const Matrix& start);
 
 /// Ball enclosure of L_n ... L_1 * start at working precision prec (start may be an identity).
 /// `out` is initialised by the caller with shape (rows of L_n) x (cols of start).
+/// Every entry of `out` contains the exact entry (rigorous). Small dimensions use a balanced product tree of
+/// acb_mat products (radius growth ~ polynomial in the word length instead of exponential left to right); big
+/// dimensions propagate the columns one letter at a time as exact midpoints plus one rigorous 2-norm error
+/// bound per column: e' = ||L||_2 e + ||rad(L * mid)||_2 with ||L||_2 bounded rigorously from the ball of
+/// L^* L (so for unitary letters the error grows only linearly in the word length).
 void word_product_ball(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec);
+
+enum class BallMethod { kAuto, kTree, kColumns };
+
+struct BallOptions {
+  /// Wanted absolute accuracy: every entry's radius <= 2^-target_bits (bits of accuracy kept).
+  long target_bits = 64;
+  long max_precision = 1 << 16;
+  BallMethod method = BallMethod::kAuto;
+  int threads = 1;
+};
+
+struct BallReport {
+  long precision = 0;      ///< working precision of the last (returned) run
+  long accuracy_bits = 0;  ///< -log2(largest radius), i.e. absolute bits kept (ARF_PREC_EXACT-like when exact)
+  long relative_bits = 0;  ///< acb_mat relative accuracy: min over nonzero entries of acb_rel_accuracy_bits
+  bool reached = false;    ///< accuracy_bits >= target_bits
+  int runs = 0;
+};
+
+/// Adaptive version: picks a starting precision from the word length, reruns at higher precision until every
+/// radius is <= 2^-target_bits (or max_precision is reached: then reached = false). Same enclosure guarantee.
+BallReport word_product_ball_adaptive(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start,
+                                      const BallOptions& opt);
+/// Same with a fixed precision and explicit method (measurements, tests).
+void word_product_ball(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec,
+                       BallMethod method, int threads = 1);
+
+/// Absolute and relative accuracy of a ball matrix (as in BallReport).
+long ball_matrix_accuracy_bits(const acb_mat_t m);
+long ball_matrix_relative_bits(const acb_mat_t m);
 
 }  // namespace zb

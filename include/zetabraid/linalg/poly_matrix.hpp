@@ -1,0 +1,96 @@
+// Integer-polynomial representation of matrices over L = K(sqrt(d_1), ..., sqrt(d_m)), K = Q(zeta_N), for fast
+// exact products (the exact engine behind word_product).
+//
+// A PolyMatrix stores
+//     M = (1/den) * sum over masks S of  P_S * prod_{j in S} sqrt(d_j),
+// where each P_S is a matrix of integer polynomials in zeta of degree < phi(N) (reduced modulo Phi_N) and den is
+// one positive integer common to all entries and masks. Products multiply the integer-polynomial matrices
+// (FLINT fmpz_poly_mat, which switches to Kronecker substitution for large entries), combine masks by XOR and
+// multiply by d_{S & T} = Field::radicand_product(S & T) (itself written as an integer polynomial over an integer
+// denominator), then reduce modulo the monic Phi_N over Z. No number-field element is touched in the inner loop.
+#pragma once
+#include <map>
+#include <memory>
+#include <mutex>
+#include <vector>
+
+#include <flint/fmpz_poly_mat.h>
+
+#include "zetabraid/linalg/matrix.hpp"
+
+namespace zb {
+
+/// Shared data for PolyMatrix arithmetic over one Field: Phi_N and the radicand products as integer
+/// polynomials. Thread-safe (radicand products are cached under a lock).
+class PolyContext {
+ public:
+  explicit PolyContext(FieldPtr f);
+  ~PolyContext();
+  PolyContext(const PolyContext&) = delete;
+  PolyContext& operator=(const PolyContext&) = delete;
+
+  const FieldPtr& field() const { return f_; }
+  long degree() const { return n_; }
+  const fmpz_poly_struct* modulus() const { return phi_; }
+  /// d_S = num / den with num an integer polynomial (reduced) and den > 0.
+  struct RadicandProduct {
+    fmpz_poly_t num;
+    fmpz_t den;
+  };
+  const RadicandProduct& radicand_product(RadicalMask s) const;
+
+ private:
+  FieldPtr f_;
+  long n_;
+  fmpz_poly_t phi_;
+  mutable std::mutex mu_;
+  mutable std::map<RadicalMask, std::unique_ptr<RadicandProduct>> rp_;
+};
+
+class PolyMatrix {
+ public:
+  PolyMatrix() = default;
+  PolyMatrix(long rows, long cols);  ///< zero matrix (den = 1)
+  static PolyMatrix identity(long n);
+  /// Exact conversion from a Matrix over ctx.field().
+  static PolyMatrix from_matrix(const Matrix& m, const PolyContext& ctx);
+  /// Exact conversion back (canonical Scalars).
+  Matrix to_matrix(const PolyContext& ctx) const;
+
+  PolyMatrix(const PolyMatrix& o);
+  PolyMatrix(PolyMatrix&& o) noexcept;
+  PolyMatrix& operator=(const PolyMatrix& o);
+  PolyMatrix& operator=(PolyMatrix&& o) noexcept;
+  ~PolyMatrix();
+
+  long rows() const { return r_; }
+  long cols() const { return c_; }
+  size_t mask_count() const { return masks_.size(); }
+  RadicalMask mask(size_t i) const { return masks_[i]; }
+  const fmpz_poly_mat_struct* part(size_t i) const { return parts_[i]; }
+  const fmpz* denominator() const { return den_; }
+  /// Largest coefficient size in bits (over all masks and entries).
+  long max_bits() const;
+
+  /// Exact product a * b (MathError on shape mismatch).
+  static PolyMatrix mul(const PolyMatrix& a, const PolyMatrix& b, const PolyContext& ctx);
+  /// Positions (i, j) of the nonzero entries of each part (index as mask(k)).
+  using Nonzeros = std::vector<std::vector<std::pair<long, long>>>;
+  Nonzeros nonzeros() const;
+  /// Exact product a * b where only the listed entries of a are visited (nz = a.nonzeros()): cost
+  /// proportional to nnz(a) * cols(b), for sparse generator matrices applied to a few columns.
+  static PolyMatrix mul_sparse(const PolyMatrix& a, const Nonzeros& nz, const PolyMatrix& b, const PolyContext& ctx);
+  /// a^e for e >= 0 (binary powering); a must be square.
+  static PolyMatrix pow(const PolyMatrix& a, unsigned long e, const PolyContext& ctx);
+
+ private:
+  static PolyMatrix mul_impl(const PolyMatrix& a, const Nonzeros* nz, const PolyMatrix& b, const PolyContext& ctx);
+  void clear();
+  void normalise();  // drop zero masks, cancel the common content against den
+  long r_ = 0, c_ = 0;
+  std::vector<RadicalMask> masks_;            // ascending
+  std::vector<fmpz_poly_mat_struct*> parts_;  // owned, one per mask
+  fmpz_t den_ = {1};
+};
+
+}  // namespace zb

@@ -1,0 +1,207 @@
+#include "zetabraid/linalg/modular.hpp"
+
+#include <fmt/format.h>
+
+#include <unordered_map>
+
+#include "zetabraid/error.hpp"
+
+namespace zb {
+
+namespace {
+
+ulong pow_mod(ulong b, ulong e, const nmod_t& m) { return n_powmod2_preinv(b, e, m.n, m.ninv); }
+
+bool has_order(ulong w, ulong n, const nmod_t& m) {
+  if (pow_mod(w, n, m) != 1) return false;
+  n_factor_t fac;
+  n_factor_init(&fac);
+  n_factor(&fac, n, 1);
+  for (int i = 0; i < fac.num; ++i)
+    if (pow_mod(w, n / fac.p[i], m) == 1) return false;
+  return true;
+}
+
+// Image of a Cyclo at zeta -> w; returns false when p divides the denominator.
+bool eval_cyclo(ulong* out, const Cyclo& x, ulong w, const nmod_t& m) {
+  fmpq_poly_t p;
+  fmpq_poly_init(p);
+  x.get_poly(p);
+  ulong den = fmpz_fdiv_ui(fmpq_poly_denref(p), m.n);
+  bool ok = den != 0;
+  if (ok) {
+    ulong v = 0;
+    for (long k = fmpq_poly_length(p) - 1; k >= 0; --k) {
+      v = nmod_mul(v, w, m);
+      v = nmod_add(v, fmpz_fdiv_ui(fmpq_poly_numref(p) + k, m.n), m);
+    }
+    *out = nmod_mul(v, n_invmod(den, m.n), m);
+  }
+  fmpq_poly_clear(p);
+  return ok;
+}
+
+nmod_t make_nmod(ulong p) {
+  nmod_t m;
+  nmod_init(&m, p);
+  return m;
+}
+
+}  // namespace
+
+ModularPrime make_prime(const Field& f, ulong p, ulong zeta, std::vector<ulong> roots) {
+  ulong n = f.conductor();
+  if (p < 3 || !n_is_prime(p)) throw InputError(fmt::format("{} is not an odd prime", p));
+  if (p % n != 1 % n) throw InputError(fmt::format("prime {} is not 1 mod the conductor {}", p, n));
+  nmod_t m = make_nmod(p);
+  zeta %= p;
+  if (!has_order(zeta, n, m)) throw InputError(fmt::format("{} is not a primitive {}-th root of unity mod {}", zeta, n, p));
+  if (roots.size() != static_cast<size_t>(f.radicand_count()))
+    throw InputError(fmt::format("{} square roots given, the field has {} radicands", roots.size(), f.radicand_count()));
+  for (int j = 0; j < f.radicand_count(); ++j) {
+    ulong d;
+    if (!eval_cyclo(&d, f.radicand(j), zeta, m))
+      throw InputError(fmt::format("prime {} divides a denominator of radicand {}", p, j + 1));
+    ulong r = roots[static_cast<size_t>(j)] % p;
+    if (nmod_mul(r, r, m) != d)
+      throw InputError(fmt::format("{}^2 is not the image {} of radicand {} mod {}", r, d, j + 1, p));
+    roots[static_cast<size_t>(j)] = r;
+  }
+  return ModularPrime{p, zeta, std::move(roots)};
+}
+
+std::vector<ModularPrime> choose_primes(const Field& f, size_t count, int bits) {
+  if (bits < 8 || bits > 63) throw InputError("prime size must be 8..63 bits");
+  ulong n = f.conductor();
+  ulong step = n % 2 ? 2 * n : n;  // p = 1 mod N and p odd
+  ulong p = (ulong{1} << (bits - 1)) / step * step + 1;
+  std::vector<ModularPrime> out;
+  for (; out.size() < count; p += step) {
+    if (p >= (ulong{1} << bits) - step) throw ResourceError("ran out of primes of the requested size");
+    if (!n_is_prime(p)) continue;
+    nmod_t m = make_nmod(p);
+    ulong w = 0;
+    for (ulong a = 2; a < p; ++a) {
+      ulong c = pow_mod(a, (p - 1) / n, m);
+      if (has_order(c, n, m)) {
+        w = c;
+        break;
+      }
+    }
+    bool ok = true;
+    std::vector<ulong> roots;
+    for (int j = 0; j < f.radicand_count() && ok; ++j) {
+      ulong d;
+      if (!eval_cyclo(&d, f.radicand(j), w, m) || d == 0) {
+        ok = false;
+        break;
+      }
+      ulong r = n_sqrtmod(d, p);
+      if (r == 0) {
+        ok = false;
+        break;
+      }
+      roots.push_back(std::min(r, p - r));
+    }
+    if (ok) out.push_back(ModularPrime{p, w, std::move(roots)});
+  }
+  return out;
+}
+
+ModularImage::ModularImage(ulong p, size_t rows, size_t cols) : mod_(make_nmod(p)), r_(rows), c_(cols), a_(rows * cols, 0) {}
+
+bool ModularImage::is_zero() const {
+  for (ulong v : a_)
+    if (v) return false;
+  return true;
+}
+
+bool operator==(const ModularImage& x, const ModularImage& y) {
+  return x.mod_.n == y.mod_.n && x.r_ == y.r_ && x.c_ == y.c_ && x.a_ == y.a_;
+}
+
+ModularImage operator*(const ModularImage& x, const ModularImage& y) {
+  if (x.c_ != y.r_ || x.mod_.n != y.mod_.n) throw MathError("modular images do not compose");
+  ModularImage z(x.mod_.n, x.r_, y.c_);
+  for (size_t i = 0; i < x.r_; ++i)
+    for (size_t k = 0; k < x.c_; ++k) {
+      ulong a = x(i, k);
+      if (!a) continue;
+      for (size_t j = 0; j < y.c_; ++j) z(i, j) = nmod_add(z(i, j), nmod_mul(a, y(k, j), x.mod_), x.mod_);
+    }
+  return z;
+}
+
+ulong reduce_cyclo(const Cyclo& x, const ModularPrime& q) {
+  nmod_t m = make_nmod(q.p);
+  ulong v;
+  if (!eval_cyclo(&v, x, q.zeta, m)) throw MathError(fmt::format("prime {} divides a denominator of {}", q.p, x.str()));
+  return v;
+}
+
+ulong reduce_scalar(const Scalar& x, const ModularPrime& q) {
+  nmod_t m = make_nmod(q.p);
+  if (q.roots.size() < static_cast<size_t>(x.field()->radicand_count()))
+    throw MathError("modular prime made for a field with fewer radicands");
+  ulong v = 0;
+  for (const auto& [s, c] : x.terms()) {
+    ulong t;
+    if (!eval_cyclo(&t, c, q.zeta, m)) throw MathError(fmt::format("prime {} divides a denominator of {}", q.p, c.str()));
+    for (int j = 0; j < 64; ++j)
+      if (s & (RadicalMask{1} << j)) t = nmod_mul(t, q.roots[static_cast<size_t>(j)], m);
+    v = nmod_add(v, t, m);
+  }
+  return v;
+}
+
+ModularImage reduce_matrix(const Matrix& a, const ModularPrime& q) {
+  ModularImage out(q.p, a.rows(), a.cols());
+  for (size_t i = 0; i < a.rows(); ++i)
+    for (size_t j = 0; j < a.cols(); ++j)
+      if (!a(i, j).is_zero()) out(i, j) = reduce_scalar(a(i, j), q);
+  return out;
+}
+
+ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const Matrix& start, const ModularPrime& q) {
+  size_t r = start.rows();
+  for (size_t i = 0; i < letters.size(); ++i) {
+    if (!letters[i] || letters[i]->cols() != r) throw MathError(fmt::format("letter {} does not compose", i + 1));
+    r = letters[i]->rows();
+  }
+  nmod_t m = make_nmod(q.p);
+  // Distinct letters reduced once, as lists of nonzero entries (row, col, value).
+  struct Entry {
+    size_t i, j;
+    ulong v;
+  };
+  std::unordered_map<const Matrix*, std::vector<Entry>> sparse;
+  ModularImage acc = reduce_matrix(start, q);
+  const size_t k = start.cols();
+  std::vector<ulong> next;
+  for (const Matrix* l : letters) {
+    auto it = sparse.find(l);
+    if (it == sparse.end()) {
+      ModularImage g = reduce_matrix(*l, q);
+      std::vector<Entry> e;
+      for (size_t i = 0; i < g.rows(); ++i)
+        for (size_t j = 0; j < g.cols(); ++j)
+          if (g(i, j)) e.push_back({i, j, g(i, j)});
+      it = sparse.emplace(l, std::move(e)).first;
+    }
+    ModularImage out(q.p, l->rows(), k);
+    for (const Entry& e : it->second) {
+      ulong* dst = &out(e.i, 0);
+      const ulong* src = &acc(e.j, 0);
+      for (size_t j = 0; j < k; ++j) dst[j] = nmod_add(dst[j], nmod_mul(e.v, src[j], m), m);
+    }
+    acc = std::move(out);
+  }
+  return acc;
+}
+
+ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const ModularPrime& q) {
+  if (letters.empty()) throw MathError("empty word: no matrix shape to return");
+  return word_product_mod(letters, Matrix::identity(letters.front()->field(), letters.front()->cols()), q);
+}
+
+}  // namespace zb

@@ -1,0 +1,329 @@
+// Ball enclosures of word products (see word_product.hpp): a balanced acb_mat product tree for small
+// dimensions, column propagation with a rigorous 2-norm error bound for big ones, adaptive precision.
+#include <fmt/format.h>
+
+#include <cmath>
+#include <exception>
+#include <memory>
+#include <thread>
+#include <unordered_map>
+
+#include "zetabraid/error.hpp"
+#include "zetabraid/linalg/word_product.hpp"
+
+namespace zb {
+
+namespace {
+
+// RAII acb_mat.
+struct BallMat {
+  acb_mat_t m;
+  BallMat(long r, long c) { acb_mat_init(m, r, c); }
+  ~BallMat() { acb_mat_clear(m); }
+  BallMat(const BallMat&) = delete;
+  BallMat& operator=(const BallMat&) = delete;
+  long rows() const { return acb_mat_nrows(m); }
+  long cols() const { return acb_mat_ncols(m); }
+};
+using BallPtr = std::unique_ptr<BallMat>;
+
+void check_ball_shapes(const std::vector<const Matrix*>& letters, const Matrix& start, const acb_mat_t out) {
+  size_t r = start.rows();
+  for (size_t i = 0; i < letters.size(); ++i) {
+    if (!letters[i]) throw MathError("null letter in a word product");
+    if (letters[i]->cols() != r)
+      throw MathError(fmt::format("letter {} ({}x{}) does not compose ({} rows before it)", i + 1, letters[i]->rows(),
+                                  letters[i]->cols(), r));
+    r = letters[i]->rows();
+  }
+  if (static_cast<size_t>(acb_mat_nrows(out)) != r || static_cast<size_t>(acb_mat_ncols(out)) != start.cols())
+    throw MathError(fmt::format("ball output is {}x{}, the product is {}x{}", acb_mat_nrows(out), acb_mat_ncols(out), r,
+                                start.cols()));
+}
+
+struct BallLetters {
+  std::vector<BallPtr> mats;  // distinct letters
+  std::vector<size_t> seq;    // leaf index per letter
+};
+
+BallLetters ball_letters(const std::vector<const Matrix*>& letters, long prec) {
+  BallLetters b;
+  std::unordered_map<const Matrix*, size_t> index;
+  for (const Matrix* m : letters) {
+    auto it = index.find(m);
+    if (it == index.end()) {
+      it = index.emplace(m, b.mats.size()).first;
+      b.mats.push_back(std::make_unique<BallMat>(static_cast<long>(m->rows()), static_cast<long>(m->cols())));
+      m->ball(b.mats.back()->m, prec);
+    }
+    b.seq.push_back(it->second);
+  }
+  return b;
+}
+
+// Runs of one letter -> (leaf, exponent).
+struct Run {
+  size_t leaf;
+  unsigned long exp;
+};
+
+class BallTree {
+ public:
+  BallTree(const BallLetters& b, long prec, int threads) : b_(b), prec_(prec) {
+    for (size_t l : b.seq) {
+      if (!runs_.empty() && runs_.back().leaf == l)
+        ++runs_.back().exp;
+      else
+        runs_.push_back({l, 1});
+    }
+    for (int t = threads; t > 1; t /= 2) ++spawn_depth_;
+  }
+  BallPtr run() { return node(0, runs_.size(), 0); }
+
+ private:
+  BallPtr leaf(const Run& r) {
+    const BallMat& g = *b_.mats[r.leaf];
+    auto out = std::make_unique<BallMat>(g.rows(), g.cols());
+    if (r.exp == 1)
+      acb_mat_set(out->m, g.m);
+    else
+      acb_mat_pow_ui(out->m, g.m, r.exp, prec_);
+    return out;
+  }
+  BallPtr node(size_t lo, size_t hi, int depth) {
+    if (hi - lo == 1) return leaf(runs_[lo]);
+    size_t mid = lo + (hi - lo) / 2;
+    BallPtr left, right;
+    if (depth < spawn_depth_ && hi - lo >= 32) {
+      std::exception_ptr err;
+      std::thread th([&] {
+        try {
+          left = node(lo, mid, depth + 1);
+        } catch (...) {
+          err = std::current_exception();
+        }
+      });
+      try {
+        right = node(mid, hi, depth + 1);
+      } catch (...) {
+        th.join();
+        throw;
+      }
+      th.join();
+      if (err) std::rethrow_exception(err);
+    } else {
+      left = node(lo, mid, depth + 1);
+      right = node(mid, hi, depth + 1);
+    }
+    auto out = std::make_unique<BallMat>(right->rows(), left->cols());
+    acb_mat_mul(out->m, right->m, left->m, prec_);
+    return out;
+  }
+  const BallLetters& b_;
+  long prec_;
+  std::vector<Run> runs_;
+  int spawn_depth_ = 0;
+};
+
+void product_tree(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec, int threads) {
+  BallMat s(static_cast<long>(start.rows()), static_cast<long>(start.cols()));
+  start.ball(s.m, prec);
+  if (letters.empty()) {
+    acb_mat_set(out, s.m);
+    return;
+  }
+  BallLetters b = ball_letters(letters, prec);
+  BallTree tree(b, prec, threads);
+  BallPtr p = tree.run();
+  if (start.is_identity())
+    acb_mat_set(out, p->m);
+  else
+    acb_mat_mul(out, p->m, s.m, prec);
+}
+
+// Upper bound for ||G||_2 (true G inside the ball): sqrt of the max row sum of |G^* G|, and the Frobenius norm.
+void norm2_bound(mag_t out, const acb_mat_t g, long prec) {
+  long r = acb_mat_nrows(g), c = acb_mat_ncols(g);
+  acb_mat_t gh, h;
+  acb_mat_init(gh, c, r);
+  acb_mat_init(h, c, c);
+  acb_mat_conjugate_transpose(gh, g);
+  acb_mat_mul(h, gh, g, prec);
+  mag_t row, t, best;
+  mag_init(row);
+  mag_init(t);
+  mag_init(best);
+  for (long i = 0; i < c; ++i) {
+    mag_zero(row);
+    for (long j = 0; j < c; ++j) {
+      acb_get_mag(t, acb_mat_entry(h, i, j));
+      mag_add(row, row, t);
+    }
+    mag_max(best, best, row);
+  }
+  mag_sqrt(best, best);
+  // Frobenius bound.
+  mag_zero(row);
+  for (long i = 0; i < r; ++i)
+    for (long j = 0; j < c; ++j) {
+      acb_get_mag(t, acb_mat_entry(g, i, j));
+      mag_addmul(row, t, t);
+    }
+  mag_sqrt(row, row);
+  mag_min(out, best, row);
+  mag_clear(best);
+  mag_clear(t);
+  mag_clear(row);
+  acb_mat_clear(h);
+  acb_mat_clear(gh);
+}
+
+// Column propagation with exact midpoints and one rigorous 2-norm error bound per column.
+void product_columns(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec) {
+  long k = static_cast<long>(start.cols());
+  auto acc = std::make_unique<BallMat>(static_cast<long>(start.rows()), k);
+  start.ball(acc->m, prec);
+  std::vector<mag_struct> err(static_cast<size_t>(k));
+  for (auto& e : err) mag_init(&e);
+  mag_t t, rad;
+  mag_init(t);
+  mag_init(rad);
+  // Move the radii of the start into the column error bounds.
+  auto absorb = [&](BallMat& m) {
+    for (long j = 0; j < k; ++j) {
+      mag_zero(rad);
+      for (long i = 0; i < m.rows(); ++i) {
+        acb_struct* e = acb_mat_entry(m.m, i, j);
+        mag_hypot(t, arb_radref(acb_realref(e)), arb_radref(acb_imagref(e)));
+        mag_addmul(rad, t, t);
+        mag_zero(arb_radref(acb_realref(e)));
+        mag_zero(arb_radref(acb_imagref(e)));
+      }
+      mag_sqrt(rad, rad);
+      mag_add(&err[static_cast<size_t>(j)], &err[static_cast<size_t>(j)], rad);
+    }
+  };
+  absorb(*acc);
+  if (!letters.empty()) {
+    BallLetters b = ball_letters(letters, prec);
+    std::vector<std::vector<std::pair<long, long>>> nz(b.mats.size());
+    std::vector<mag_struct> nu(b.mats.size());
+    for (size_t l = 0; l < b.mats.size(); ++l) {
+      const BallMat& g = *b.mats[l];
+      for (long i = 0; i < g.rows(); ++i)
+        for (long j = 0; j < g.cols(); ++j)
+          if (!acb_is_zero(acb_mat_entry(g.m, i, j))) nz[l].emplace_back(i, j);
+      mag_init(&nu[l]);
+      norm2_bound(&nu[l], g.m, prec);
+    }
+    for (size_t l : b.seq) {
+      const BallMat& g = *b.mats[l];
+      auto next = std::make_unique<BallMat>(g.rows(), k);
+      for (auto [i, c] : nz[l])
+        for (long j = 0; j < k; ++j)
+          acb_addmul(acb_mat_entry(next->m, i, j), acb_mat_entry(g.m, i, c), acb_mat_entry(acc->m, c, j), prec);
+      for (auto& e : err) mag_mul(&e, &e, &nu[l]);
+      absorb(*next);
+      acc = std::move(next);
+    }
+    for (auto& v : nu) mag_clear(&v);
+  }
+  acb_mat_set(out, acc->m);
+  for (long i = 0; i < acc->rows(); ++i)
+    for (long j = 0; j < k; ++j) {
+      acb_struct* e = acb_mat_entry(out, i, j);
+      arb_add_error_mag(acb_realref(e), &err[static_cast<size_t>(j)]);
+      arb_add_error_mag(acb_imagref(e), &err[static_cast<size_t>(j)]);
+    }
+  for (auto& e : err) mag_clear(&e);
+  mag_clear(rad);
+  mag_clear(t);
+}
+
+BallMethod pick(const std::vector<const Matrix*>& letters, const Matrix& start, BallMethod m) {
+  if (m != BallMethod::kAuto) return m;
+  size_t dim = start.rows();
+  for (const Matrix* l : letters) dim = std::max(dim, l->rows());
+  // Tree products cost dim^3 per letter, columns cost nnz * cols per letter (and keep more bits).
+  return dim <= 8 ? BallMethod::kTree : BallMethod::kColumns;
+}
+
+}  // namespace
+
+void word_product_ball(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec) {
+  word_product_ball(out, letters, start, prec, BallMethod::kAuto, 1);
+}
+
+void word_product_ball(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec,
+                       BallMethod method, int threads) {
+  check_ball_shapes(letters, start, out);
+  if (prec < 2) throw MathError("ball precision must be at least 2 bits");
+  if (pick(letters, start, method) == BallMethod::kTree)
+    product_tree(out, letters, start, prec, threads);
+  else
+    product_columns(out, letters, start, prec);
+}
+
+long ball_matrix_accuracy_bits(const acb_mat_t m) {
+  mag_t r, t;
+  mag_init(r);
+  mag_init(t);
+  for (long i = 0; i < acb_mat_nrows(m); ++i)
+    for (long j = 0; j < acb_mat_ncols(m); ++j) {
+      const acb_struct* e = acb_mat_entry(m, i, j);
+      mag_max(r, r, arb_radref(acb_realref(e)));
+      mag_max(r, r, arb_radref(acb_imagref(e)));
+    }
+  long bits;
+  if (mag_is_zero(r)) {
+    bits = ARF_PREC_EXACT;
+  } else if (mag_is_inf(r)) {
+    bits = -ARF_PREC_EXACT;
+  } else {
+    // Largest b with r <= 2^-b (rigorous on the mag upper bound).
+    bits = static_cast<long>(std::floor(-mag_get_d_log2_approx(r))) + 2;
+    while (mag_cmp_2exp_si(r, -bits) > 0) --bits;
+  }
+  mag_clear(t);
+  mag_clear(r);
+  return bits;
+}
+
+long ball_matrix_relative_bits(const acb_mat_t m) {
+  long best = ARF_PREC_EXACT;
+  for (long i = 0; i < acb_mat_nrows(m); ++i)
+    for (long j = 0; j < acb_mat_ncols(m); ++j) {
+      const acb_struct* e = acb_mat_entry(m, i, j);
+      if (acb_is_zero(e)) continue;
+      best = std::min(best, static_cast<long>(acb_rel_accuracy_bits(e)));
+    }
+  return best;
+}
+
+BallReport word_product_ball_adaptive(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start,
+                                      const BallOptions& opt) {
+  check_ball_shapes(letters, start, out);
+  BallMethod m = pick(letters, start, opt.method);
+  size_t dim = start.rows();
+  for (const Matrix* l : letters) dim = std::max(dim, l->rows());
+  double lg = std::log2(static_cast<double>(letters.size()) + 2.0);
+  // Expected loss: tree ~ levels * log2(dim) bits; columns ~ log2(length) + log2(dim).
+  double loss = m == BallMethod::kTree ? lg * (std::log2(static_cast<double>(dim)) + 1.0) : lg + std::log2(static_cast<double>(dim)) + 4;
+  long prec = std::max<long>(32, opt.target_bits + static_cast<long>(loss) + 16);
+  BallReport rep;
+  for (;;) {
+    prec = std::min(prec, opt.max_precision);
+    word_product_ball(out, letters, start, prec, m, opt.threads);
+    ++rep.runs;
+    rep.precision = prec;
+    rep.accuracy_bits = ball_matrix_accuracy_bits(out);
+    rep.relative_bits = ball_matrix_relative_bits(out);
+    rep.reached = rep.accuracy_bits >= opt.target_bits;
+    if (rep.reached || prec >= opt.max_precision) break;
+    long missing = opt.target_bits - std::max<long>(rep.accuracy_bits, -prec);
+    prec += std::max<long>(missing + 16, prec / 2);
+  }
+  return rep;
+}
+
+}  // namespace zb

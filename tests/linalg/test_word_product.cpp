@@ -1,0 +1,338 @@
+// Fast word-product engines against the straightforward left-to-right product, against reductions mod p, against
+// ball containment and against PARI/GP. Fixed seeds throughout.
+#include <doctest/doctest.h>
+
+#include <fmt/format.h>
+
+#include <random>
+
+#include "braid/fib_model.hpp"
+#include "support/helpers.hpp"
+#include "zetabraid/braid/generators.hpp"
+#include "zetabraid/error.hpp"
+#include "zetabraid/field/expression.hpp"
+#include "zetabraid/linalg/modular.hpp"
+#include "zetabraid/linalg/poly_matrix.hpp"
+#include "zetabraid/linalg/word_product.hpp"
+
+using namespace zb;
+
+namespace {
+
+// Random matrix with entries in the field: base-field coefficients times radical monomials; about `zero_pct`
+// percent of the entries are zero.
+Matrix random_matrix(const FieldPtr& f, size_t r, size_t c, std::mt19937_64& rng, int zero_pct = 30) {
+  Matrix m(f, r, c);
+  std::uniform_int_distribution<int> pct(0, 99);
+  RadicalMask all = (RadicalMask{1} << f->radicand_count()) - 1;
+  std::uniform_int_distribution<RadicalMask> mask(0, all);
+  for (size_t i = 0; i < r; ++i)
+    for (size_t j = 0; j < c; ++j) {
+      if (pct(rng) < zero_pct) continue;
+      Scalar s(f);
+      int terms = 1 + pct(rng) % 2;
+      for (int t = 0; t < terms; ++t) s += Scalar::monomial(f, zbtest::random_cyclo(f->cyclotomic(), rng, 3), mask(rng));
+      m(i, j) = s;
+    }
+  return m;
+}
+
+// A word of `len` letters from `pool`, with runs and a repeated block mixed in.
+std::vector<const Matrix*> random_word(const std::vector<Matrix>& pool, size_t len, std::mt19937_64& rng) {
+  std::uniform_int_distribution<size_t> pick(0, pool.size() - 1);
+  std::vector<const Matrix*> w;
+  while (w.size() < len) {
+    int kind = static_cast<int>(rng() % 4);
+    if (kind == 0) {  // a run
+      const Matrix* m = &pool[pick(rng)];
+      for (size_t k = rng() % 5; k-- > 0 && w.size() < len;) w.push_back(m);
+    } else if (kind == 1 && w.size() >= 3) {  // repeat an earlier block
+      size_t a = rng() % (w.size() - 2), b = std::min(w.size(), a + 1 + rng() % 6);
+      std::vector<const Matrix*> blk(w.begin() + static_cast<long>(a), w.begin() + static_cast<long>(b));
+      for (const Matrix* m : blk)
+        if (w.size() < len) w.push_back(m);
+    } else {
+      w.push_back(&pool[pick(rng)]);
+    }
+  }
+  return w;
+}
+
+FieldPtr field_with_roots(unsigned long n, const std::vector<std::string>& radicands) {
+  FieldPtr f = Field::make(n);
+  for (const auto& r : radicands) f->sqrt(parse_expression(r, f).to_base());
+  return f;
+}
+
+// Ball check: the exact value's tight enclosure lies inside the computed ball.
+bool contains_exact(const acb_mat_t b, const Matrix& exact) {
+  acb_mat_t e;
+  acb_mat_init(e, static_cast<long>(exact.rows()), static_cast<long>(exact.cols()));
+  exact.ball(e, 1024);
+  bool ok = true;
+  for (long i = 0; i < acb_mat_nrows(e) && ok; ++i)
+    for (long j = 0; j < acb_mat_ncols(e) && ok; ++j)
+      ok = acb_contains(acb_mat_entry(b, i, j), acb_mat_entry(e, i, j));
+  acb_mat_clear(e);
+  return ok;
+}
+
+std::vector<const Matrix*> fibonacci_word(BraidGenerators& g, const std::vector<int>& anyons, size_t len, unsigned seed) {
+  std::mt19937_64 rng(seed);
+  Word w;
+  int strands = static_cast<int>(anyons.size());
+  for (size_t i = 0; i < len; ++i) {
+    int k = 1 + static_cast<int>(rng() % static_cast<unsigned>(strands - 1));
+    w.letters.push_back(rng() % 2 ? k : -k);
+  }
+  w.columns.assign(len, 0);
+  return g.letters(anyons, w);
+}
+
+}  // namespace
+
+TEST_CASE("product tree equals the left-to-right product exactly") {
+  // Fields: Q(zeta_5), Q(zeta_12), Q(zeta_5)(sqrt(1/phi)), Q(zeta_3)(sqrt 2, sqrt 5) (two radicands: masks XOR and
+  // products of radicands in the intersection are exercised).
+  std::vector<FieldPtr> fields = {Field::make(5), Field::make(12), field_with_roots(5, {"zeta + zeta^4"}),
+                                  field_with_roots(3, {"2", "5"})};
+  std::mt19937_64 rng(20261202);
+  for (const FieldPtr& f : fields) {
+    CAPTURE(f->conductor());
+    CAPTURE(f->radicand_count());
+    for (int trial = 0; trial < 3; ++trial) {
+      size_t d = 2 + rng() % 3;
+      std::vector<Matrix> pool;
+      for (int k = 0; k < 3; ++k) pool.push_back(random_matrix(f, d, d, rng));
+      auto w = random_word(pool, 6 + rng() % 30, rng);
+      Matrix naive = word_product_naive(w, Matrix::identity(f, d));
+      Matrix fast = word_product(w);
+      CHECK(fast == naive);
+      ProductOptions plain;
+      plain.share_repeats = false;
+      CHECK(word_product(w, plain) == naive);
+      // Negative control: dropping one letter changes the product (random invertible-looking letters).
+      std::vector<const Matrix*> shorter(w.begin() + 1, w.end());
+      if (!naive.is_zero()) CHECK(word_product(shorter) != naive * pool[0]);
+    }
+  }
+}
+
+TEST_CASE("periodic words, powers and non-square letters") {
+  FieldPtr f = field_with_roots(5, {"zeta + zeta^4"});
+  std::mt19937_64 rng(7);
+  Matrix a = random_matrix(f, 3, 3, rng, 0), b = random_matrix(f, 3, 3, rng, 20), c = random_matrix(f, 3, 3, rng, 50);
+  std::vector<const Matrix*> w;
+  for (int rep = 0; rep < 9; ++rep) {
+    w.push_back(&a);
+    w.push_back(&b);
+    w.push_back(&b);
+    w.push_back(&c);
+  }
+  w.push_back(&a);
+  w.push_back(&b);  // (a b b c)^9 a b
+  CHECK(word_product(w) == word_product_naive(w, Matrix::identity(f, 3)));
+  std::vector<const Matrix*> run(40, &b);
+  CHECK(word_product(run) == word_product_naive(run, Matrix::identity(f, 3)));
+  // Rectangular letters: 2x3 after 3x4.
+  Matrix p = random_matrix(f, 3, 4, rng, 10), q = random_matrix(f, 2, 3, rng, 10);
+  std::vector<const Matrix*> rect = {&p, &a, &q};
+  CHECK(word_product(rect) == q * (a * p));
+  std::vector<const Matrix*> bad = {&q, &q};
+  CHECK_THROWS_AS(word_product(bad), MathError);
+}
+
+TEST_CASE("columns engine on a big sparse space equals the left-to-right product") {
+  FieldPtr f = field_with_roots(5, {"zeta + zeta^4"});
+  std::mt19937_64 rng(99);
+  const size_t d = 40;
+  std::vector<Matrix> pool;
+  for (int k = 0; k < 3; ++k) pool.push_back(random_matrix(f, d, d, rng, 93));
+  auto w = random_word(pool, 25, rng);
+  Matrix start = random_matrix(f, d, 2, rng, 50);
+  Matrix naive = word_product_naive(w, start);
+  CHECK(word_product_columns(w, start) == naive);
+  ProductOptions tree;
+  tree.columns_ratio = 1000;  // forces the product tree, then times start
+  CHECK(word_product_columns(w, start, tree) == naive);
+  CHECK(word_product_columns({}, start) == start);
+}
+
+TEST_CASE("identical results at any thread count") {
+  FieldPtr f = field_with_roots(3, {"2"});
+  std::mt19937_64 rng(5);
+  std::vector<Matrix> pool;
+  for (int k = 0; k < 4; ++k) pool.push_back(random_matrix(f, 3, 3, rng, 40));
+  auto w = random_word(pool, 300, rng);
+  ProductOptions o;
+  Matrix one = word_product(w, o);
+  for (int t : {2, 3, 4}) {
+    o.threads = t;
+    CHECK(word_product(w, o) == one);
+  }
+  acb_mat_t b1, b4;
+  acb_mat_init(b1, 3, 3);
+  acb_mat_init(b4, 3, 3);
+  word_product_ball(b1, w, Matrix::identity(f, 3), 200, BallMethod::kTree, 1);
+  word_product_ball(b4, w, Matrix::identity(f, 3), 200, BallMethod::kTree, 4);
+  CHECK(acb_mat_equal(b1, b4));
+  acb_mat_clear(b1);
+  acb_mat_clear(b4);
+}
+
+TEST_CASE("poly matrix conversion round trip and denominators") {
+  FieldPtr f = field_with_roots(12, {"3", "zeta + zeta^11 + 5"});
+  std::mt19937_64 rng(11);
+  PolyContext ctx(f);
+  for (int t = 0; t < 5; ++t) {
+    Matrix m = random_matrix(f, 3, 2, rng);
+    CHECK(PolyMatrix::from_matrix(m, ctx).to_matrix(ctx) == m);
+  }
+  // (1/2) * 2 = 1: the common denominator cancels.
+  Matrix h(f, 1, 1), two(f, 1, 1);
+  h(0, 0) = Scalar(f, Cyclo(f->cyclotomic(), 1, 2));
+  two(0, 0) = Scalar(f, 2);
+  PolyMatrix p = PolyMatrix::mul(PolyMatrix::from_matrix(two, ctx), PolyMatrix::from_matrix(h, ctx), ctx);
+  CHECK(fmpz_is_one(p.denominator()));
+  CHECK(p.to_matrix(ctx).is_identity());
+}
+
+TEST_CASE("modular images equal the exact result reduced mod p") {
+  FieldPtr f = field_with_roots(5, {"zeta + zeta^4"});
+  auto primes = choose_primes(*f, 3, 62);
+  REQUIRE(primes.size() == 3);
+  std::mt19937_64 rng(3);
+  std::vector<Matrix> pool;
+  for (int k = 0; k < 3; ++k) pool.push_back(random_matrix(f, 4, 4, rng, 30));
+  auto w = random_word(pool, 40, rng);
+  Matrix exact = word_product(w);
+  Matrix start = random_matrix(f, 4, 2, rng, 0);
+  Matrix exact_cols = word_product_columns(w, start);
+  for (const auto& q : primes) {
+    CHECK(q.p % 5 == 1);
+    CHECK(word_product_mod(w, q) == reduce_matrix(exact, q));
+    CHECK(word_product_mod(w, start, q) == reduce_matrix(exact_cols, q));
+    // Homomorphism: image of a product = product of images.
+    CHECK(reduce_matrix(pool[0] * pool[1], q) == reduce_matrix(pool[0], q) * reduce_matrix(pool[1], q));
+    // Negative control: a different word has a different image.
+    std::vector<const Matrix*> w2 = w;
+    w2[3] = w2[3] == &pool[0] ? &pool[1] : &pool[0];
+    CHECK(word_product_mod(w2, q) != reduce_matrix(exact, q));
+  }
+  // make_prime rejects a wrong root of the radicand.
+  auto q = primes[0];
+  CHECK_NOTHROW(make_prime(*f, q.p, q.zeta, q.roots));
+  CHECK_THROWS_AS(make_prime(*f, q.p, q.zeta, {q.roots[0] + 1}), InputError);
+  CHECK_THROWS_AS(make_prime(*f, q.p, 1, q.roots), InputError);
+  CHECK_THROWS_AS(make_prime(*f, q.p + 2, q.zeta, q.roots), InputError);
+}
+
+TEST_CASE("chosen primes checked by PARI/GP") {
+  if (!zbtest::have_gp()) return;
+  FieldPtr f = field_with_roots(5, {"zeta + zeta^4"});
+  auto primes = choose_primes(*f, 2, 62);
+  for (const auto& q : primes) {
+    // Independent oracle (PARI/GP): p prime, w a root of polcyclo(5) mod p, s^2 = w + w^4 mod p.
+    std::string prog = fmt::format(
+        "p={}; w=Mod({},p); s=Mod({},p); print(isprime(p) && subst(polcyclo(5),x,w)==0 && s^2==w+w^4)", q.p, q.zeta,
+        q.roots[0]);
+    CHECK(zbtest::gp(prog) == "1");
+    std::string wrong = fmt::format("p={}; w=Mod({},p); print(subst(polcyclo(5),x,w+1)==0)", q.p, q.zeta);
+    CHECK(zbtest::gp(wrong) == "0");  // negative control
+  }
+}
+
+TEST_CASE("exact product agrees with PARI/GP on Q(zeta_7)") {
+  if (!zbtest::have_gp()) return;
+  FieldPtr f = Field::make(7);
+  std::mt19937_64 rng(77);
+  std::vector<Matrix> pool;
+  for (int k = 0; k < 2; ++k) pool.push_back(random_matrix(f, 3, 3, rng, 20));
+  auto w = random_word(pool, 30, rng);
+  Matrix p = word_product(w);
+  // GP multiplies the same matrices (entries as polynomials mod polcyclo(7)) left to right.
+  auto gp_mat = [](const Matrix& m) {
+    std::string s = "[";
+    for (size_t i = 0; i < m.rows(); ++i) {
+      for (size_t j = 0; j < m.cols(); ++j) {
+        std::string e = m(i, j).str();  // GP reserves the name zeta: write z
+        for (size_t at; (at = e.find("zeta")) != std::string::npos;) e.replace(at, 4, "z");
+        s += (j ? "," : "") + std::string("(") + e + ")";
+      }
+      s += i + 1 < m.rows() ? ";" : "]";
+    }
+    return s;
+  };
+  std::string prog = "z=Mod(x,polcyclo(7)); L=[" + gp_mat(pool[0]) + "," + gp_mat(pool[1]) + "]; W=[";
+  for (size_t i = 0; i < w.size(); ++i) prog += (i ? "," : "") + std::to_string(w[i] == &pool[0] ? 1 : 2);
+  prog += "]; P=matid(3); for(i=1,#W,P=L[W[i]]*P); R=" + gp_mat(p) + "; print(P==R); print(P==2*R)";
+  std::string out = zbtest::gp(prog);
+  CAPTURE(prog);
+  CHECK(out == "1\n0");
+}
+
+TEST_CASE("balls contain the exact result") {
+  FieldPtr f = field_with_roots(5, {"zeta + zeta^4"});
+  std::mt19937_64 rng(13);
+  std::vector<Matrix> pool;
+  for (int k = 0; k < 3; ++k) pool.push_back(random_matrix(f, 3, 3, rng, 30));
+  auto w = random_word(pool, 30, rng);
+  Matrix start = random_matrix(f, 3, 2, rng, 0);
+  Matrix exact = word_product_naive(w, start);
+  for (BallMethod m : {BallMethod::kTree, BallMethod::kColumns}) {
+    acb_mat_t b;
+    acb_mat_init(b, 3, 2);
+    word_product_ball(b, w, start, 256, m, 1);
+    CHECK(contains_exact(b, exact));
+    CHECK(!contains_exact(b, exact.scaled(Scalar(f, 2))));  // negative control
+    acb_mat_clear(b);
+  }
+}
+
+TEST_CASE("interval engine on Fibonacci words keeps the requested bits") {
+  // Fibonacci data: Kitaev (2006), Nayak et al. (2008) via tests/braid/fib_model.hpp; V(t^6; t) has
+  // dimension 5 (Fibonacci number F_5, common practice).
+  Model m = zbtest::fibonacci_model();
+  BraidGenerators g(m, 0);  // total charge 1 (label index 0)
+  std::vector<int> anyons(6, 1);
+  REQUIRE(g.space(anyons).dimension() == 5);
+  auto w = fibonacci_word(g, anyons, 400, 1);
+  Matrix id = Matrix::identity(m.field, 5);
+  Matrix exact = word_product(w);
+  CHECK(exact == word_product_naive(w, id));
+  for (BallMethod meth : {BallMethod::kTree, BallMethod::kColumns}) {
+    acb_mat_t b;
+    acb_mat_init(b, 5, 5);
+    BallOptions o;
+    o.target_bits = 80;
+    o.method = meth;
+    BallReport r = word_product_ball_adaptive(b, w, id, o);
+    CHECK(r.reached);
+    CHECK(r.accuracy_bits >= 80);
+    CHECK(contains_exact(b, exact));
+    acb_mat_clear(b);
+  }
+  // Left to right at 64 bits with plain balls loses far more than the tree (the reason for the tree).
+  acb_mat_t naive;
+  acb_mat_init(naive, 5, 5);
+  id.ball(naive, 64);
+  for (const Matrix* l : w) {
+    acb_mat_t t, gb;
+    acb_mat_init(gb, 5, 5);
+    acb_mat_init(t, 5, 5);
+    l->ball(gb, 64);
+    acb_mat_mul(t, gb, naive, 64);
+    acb_mat_swap(t, naive);
+    acb_mat_clear(t);
+    acb_mat_clear(gb);
+  }
+  acb_mat_t tree;
+  acb_mat_init(tree, 5, 5);
+  word_product_ball(tree, w, id, 64, BallMethod::kTree, 1);
+  CHECK(ball_matrix_accuracy_bits(tree) > ball_matrix_accuracy_bits(naive) + 20);
+  acb_mat_clear(tree);
+  acb_mat_clear(naive);
+  // Modular image of the Fibonacci word equals the exact product reduced.
+  auto q = choose_primes(*m.field, 1)[0];
+  CHECK(word_product_mod(w, q) == reduce_matrix(exact, q));
+}
