@@ -64,6 +64,61 @@ struct Acc {
   }
 };
 
+// An integer polynomial (RAII over fmpz_poly_t).
+struct Poly {
+  fmpz_poly_t p;
+  Poly() { fmpz_poly_init(p); }
+  ~Poly() { fmpz_poly_clear(p); }
+  Poly(const Poly& o) {
+    fmpz_poly_init(p);
+    fmpz_poly_set(p, o.p);
+  }
+  Poly(Poly&& o) noexcept {
+    fmpz_poly_init(p);
+    fmpz_poly_swap(p, o.p);
+  }
+  Poly& operator=(const Poly& o) {
+    fmpz_poly_set(p, o.p);
+    return *this;
+  }
+  Poly& operator=(Poly&& o) noexcept {
+    fmpz_poly_swap(p, o.p);
+    return *this;
+  }
+};
+
+// A sparse value with integral coefficients: sum_i c[i](zeta) * sqrt(d_{m[i]}), c[i] in Z[x] (not necessarily
+// reduced modulo Phi_N until finished).
+struct IAcc {
+  std::vector<RadicalMask> m;
+  std::vector<Poly> c;
+  size_t n = 0;
+  void clear() { n = 0; }
+  fmpz_poly_struct* slot(RadicalMask mask) {
+    for (size_t i = 0; i < n; ++i)
+      if (m[i] == mask) return c[i].p;
+    if (n == c.size()) {
+      c.emplace_back();
+      m.push_back(mask);
+    } else {
+      m[n] = mask;
+      fmpz_poly_zero(c[n].p);
+    }
+    return c[n++].p;
+  }
+};
+
+// x (integral coefficients) as an integer polynomial; false when some coefficient is not an integer.
+bool integral_poly(const Cyclo& x, Poly& out) {
+  fmpq_poly_t q;
+  fmpq_poly_init(q);
+  x.get_poly(q);
+  bool ok = fmpz_is_one(fmpq_poly_denref(q));
+  if (ok) fmpq_poly_get_numerator(out.p, q);
+  fmpq_poly_clear(q);
+  return ok;
+}
+
 struct Tables {
   const Model& M;
   int n;
@@ -122,9 +177,47 @@ struct Tables {
       rinv.emplace_back(F->cyclotomic());
       rinv.back().set(v.inverse());
     }
+    build_integral();
     ch.resize(static_cast<size_t>(n) * n);
     for (int a = 0; a < n; ++a)
       for (int b = 0; b < n; ++b) ch[static_cast<size_t>(a) * n + b] = M.channels(a, b);
+  }
+  // Integral images of every table value and of the cyclotomic modulus, for the integer kernel. Used when the
+  // (scaled) F values, the R-symbols, their inverses and the radicands all have integral coefficients.
+  bool integral = false;
+  std::vector<IAcc> ifvals, irvals, irinv;
+  std::vector<std::pair<long, long>> modulus;  // Phi_N = x^d + sum (coefficient, exponent) below the leading term
+  long degree = 0;
+  std::vector<Poly> iradicands;
+  void build_integral() {
+    auto conv = [](const std::vector<Acc>& from, std::vector<IAcc>& to) {
+      for (const Acc& v : from) {
+        IAcc x;
+        for (size_t i = 0; i < v.n; ++i) {
+          Poly q;
+          if (!integral_poly(v.c[i], q)) return false;
+          fmpz_poly_set(x.slot(v.m[i]), q.p);
+        }
+        to.push_back(std::move(x));
+      }
+      return true;
+    };
+    integral = conv(fvals, ifvals) && conv(rvals, irvals) && conv(rinv, irinv);
+    for (int j = 0; integral && j < F->radicand_count(); ++j) {
+      Poly q;
+      integral = integral_poly(F->radicand(j), q);
+      iradicands.push_back(std::move(q));
+    }
+    const fmpz_poly_struct* phi = F->cyclotomic()->modulus();
+    degree = fmpz_poly_degree(phi);
+    for (long i = 0; i < degree; ++i) {
+      const fmpz* co = phi->coeffs + i;
+      if (fmpz_is_zero(co)) continue;
+      if (!fmpz_fits_si(co)) integral = false;
+      else modulus.emplace_back(fmpz_get_si(co), i);
+    }
+    if (!fmpz_is_one(phi->coeffs + degree)) integral = false;
+    if (!integral) ifvals.clear(), irvals.clear(), irinv.clear();
   }
   size_t idx6(int a, int b, int c, int d, int e, int f) const {
     size_t N = static_cast<size_t>(n);
@@ -253,6 +346,12 @@ struct Worker {
     fmpq_clear(q);
     return r * f;
   }
+  using Value = Acc;
+  Acc make() const { return Acc(T.F->cyclotomic()); }
+  const Acc* fv(int a, int b, int c, int d, int e, int f) const { return T.fv(a, b, c, d, e, f); }
+  const Acc* rv(int a, int b, int c) const { return T.rv(a, b, c); }
+  const Acc* riv(int a, int b, int c) const { return T.riv(a, b, c); }
+  bool is_zero(const Acc& v) const { return v.is_zero(); }
   // Brings every coefficient of an accumulated value back to canonical reduced form.
   void finish(Acc& v) {
     if (!T.generic) return;
@@ -264,6 +363,122 @@ struct Worker {
   }
 };
 
+// The integer kernel: the same operations on integral polynomials, with a sparse reduction modulo Phi_N
+// (Phi_N is monic with few terms for the conductors of SU(2)_k: e.g. Phi_48 = x^16 - x^8 + 1).
+struct IntWorker {
+  const Tables& T;
+  Poly t1, t2;
+  std::unordered_map<RadicalMask, Poly> rad;
+  explicit IntWorker(const Tables& t) : T(t) {}
+
+  using Value = IAcc;
+  IAcc make() const { return IAcc(); }
+  const IAcc* fv(int a, int b, int c, int d, int e, int f) const {
+    int i = T.fid(a, b, c, d, e, f);
+    return i < 0 ? nullptr : &T.ifvals[static_cast<size_t>(i)];
+  }
+  const IAcc* rv(int a, int b, int c) const {
+    int i = T.rid_(a, b, c);
+    return i < 0 ? nullptr : &T.irvals[static_cast<size_t>(i)];
+  }
+  const IAcc* riv(int a, int b, int c) const {
+    int i = T.rid_(a, b, c);
+    return i < 0 ? nullptr : &T.irinv[static_cast<size_t>(i)];
+  }
+
+  // x <- x mod Phi_N, using x^d = -sum c_j x^j.
+  void reduce(fmpz_poly_struct* x) const {
+    const long d = T.degree;
+    long len = x->length;
+    if (len <= d) return;
+    fmpz* co = x->coeffs;
+    for (long i = len - 1; i >= d; --i) {
+      if (fmpz_is_zero(co + i)) continue;
+      for (const auto& [cj, j] : T.modulus) fmpz_submul_si(co + (i - d + j), co + i, cj);
+      fmpz_zero(co + i);
+    }
+    _fmpz_poly_set_length(x, d);
+    _fmpz_poly_normalise(x);
+  }
+  const Poly& radprod(RadicalMask s) {
+    auto it = rad.find(s);
+    if (it != rad.end()) return it->second;
+    Poly p;
+    fmpz_poly_one(p.p);
+    for (int j = 0; j < static_cast<int>(T.iradicands.size()); ++j)
+      if (s & (RadicalMask{1} << j)) {
+        fmpz_poly_mul(p.p, p.p, T.iradicands[static_cast<size_t>(j)].p);
+        reduce(p.p);
+      }
+    return rad.emplace(s, std::move(p)).first->second;
+  }
+  // t1 = x_i * y_j (times the radicand product of their common square roots); reduced when asked.
+  void product(const IAcc& x, size_t i, const IAcc& y, size_t j, bool reduced) {
+    fmpz_poly_mul(t1.p, x.c[i].p, y.c[j].p);
+    RadicalMask common = x.m[i] & y.m[j];
+    if (common) {
+      reduce(t1.p);
+      fmpz_poly_mul(t2.p, t1.p, radprod(common).p);
+      fmpz_poly_swap(t1.p, t2.p);
+    }
+    if (reduced) reduce(t1.p);
+  }
+  void addmul(IAcc& out, const IAcc& x, const IAcc& y) {
+    for (size_t i = 0; i < x.n; ++i)
+      for (size_t j = 0; j < y.n; ++j) {
+        product(x, i, y, j, false);
+        fmpz_poly_struct* s = out.slot(x.m[i] ^ y.m[j]);
+        fmpz_poly_add(s, s, t1.p);
+      }
+  }
+  void mul(IAcc& out, const IAcc& x, const IAcc& y) {
+    out.clear();
+    for (size_t i = 0; i < x.n; ++i)
+      for (size_t j = 0; j < y.n; ++j) {
+        product(x, i, y, j, true);
+        fmpz_poly_struct* s = out.slot(x.m[i] ^ y.m[j]);
+        fmpz_poly_add(s, s, t1.p);
+      }
+  }
+  void sub(IAcc& out, const IAcc& x) {
+    for (size_t i = 0; i < x.n; ++i) {
+      fmpz_poly_struct* s = out.slot(x.m[i]);
+      fmpz_poly_sub(s, s, x.c[i].p);
+    }
+  }
+  void scale(IAcc& v) {
+    if (fmpz_is_one(T.scale)) return;
+    for (size_t i = 0; i < v.n; ++i) fmpz_poly_scalar_mul_fmpz(v.c[i].p, v.c[i].p, T.scale);
+  }
+  void finish(IAcc& v) {
+    for (size_t i = 0; i < v.n; ++i) reduce(v.c[i].p);
+  }
+  bool is_zero(const IAcc& v) const {
+    for (size_t i = 0; i < v.n; ++i)
+      if (!fmpz_poly_is_zero(v.c[i].p)) return false;
+    return true;
+  }
+  Scalar unscale(const IAcc& v, int power) const {
+    Scalar r(T.F);
+    fmpq_poly_t q;
+    fmpq_poly_init(q);
+    for (size_t i = 0; i < v.n; ++i) {
+      fmpq_poly_set_fmpz_poly(q, v.c[i].p);
+      Cyclo c = Cyclo::from_poly(T.F->cyclotomic(), q);
+      if (!c.is_zero()) r += Scalar::monomial(T.F, c, v.m[i]);
+    }
+    fmpq_poly_clear(q);
+    if (fmpz_is_one(T.scale)) return r;
+    fmpq_t s;
+    fmpq_init(s);
+    fmpz_pow_ui(fmpq_denref(s), T.scale, static_cast<ulong>(power));
+    fmpz_one(fmpq_numref(s));
+    Scalar f(T.F, Cyclo(T.F->cyclotomic(), s));
+    fmpq_clear(s);
+    return r * f;
+  }
+};
+
 std::string lab(const Model& m, int a) { return m.labels[static_cast<size_t>(a)]; }
 
 struct BlockResult {
@@ -272,13 +487,13 @@ struct BlockResult {
 };
 
 // Runs work(i, worker, result) for i in [0, total) on threads; returns per-item results in order.
-template <class Work>
+template <class W, class Work>
 std::vector<BlockResult> run_parallel(const Tables& T, size_t total, int threads, const std::string& stage,
                                       const CheckOptions& opt, Work work) {
   std::vector<BlockResult> res(total);
   std::atomic<size_t> next{0}, done{0};
   auto body = [&] {
-    Worker w(T);
+    W w(T);
     for (;;) {
       size_t i = next.fetch_add(1);
       if (i >= total) break;
@@ -350,8 +565,10 @@ std::vector<PentagonBlock> pentagon_blocks(const Tables& T) {
 }
 
 // One pentagon block: every (f,g) x (k,l).
-void pentagon_block(const Tables& T, const PentagonBlock& B, Worker& w, BlockResult& r, const CheckOptions& opt,
+template <class W>
+void pentagon_block(const Tables& T, const PentagonBlock& B, W& w, BlockResult& r, const CheckOptions& opt,
                     bool record) {
+  using V = typename W::Value;
   const int a = B.a, b = B.b, c = B.c, d = B.d, e = B.e, n = T.n;
   std::vector<std::pair<int, int>> right;  // (k, l)
   std::vector<int> pos(static_cast<size_t>(n) * n, -1);
@@ -361,24 +578,25 @@ void pentagon_block(const Tables& T, const PentagonBlock& B, Worker& w, BlockRes
         pos[static_cast<size_t>(k) * n + l] = static_cast<int>(right.size());
         right.emplace_back(k, l);
       }
-  std::vector<Acc> acc(right.size(), Acc(T.F->cyclotomic()));
-  Acc p(T.F->cyclotomic()), lhs(T.F->cyclotomic());
+  std::vector<V> acc;
+  for (size_t j = 0; j < right.size(); ++j) acc.push_back(w.make());
+  V p = w.make(), lhs = w.make();
   for (int f : T.chan(a, b))
     for (int g : T.chan(f, c)) {
       if (!T.N(g, d, e)) continue;
-      for (Acc& x : acc) x.clear();
+      for (V& x : acc) x.clear();
       for (int h : T.chan(b, c)) {
-        const Acc* x1 = T.fv(a, b, c, g, f, h);
+        const V* x1 = w.fv(a, b, c, g, f, h);
         if (!x1) continue;
         for (int k : T.chan(h, d)) {
           if (!T.N(a, k, e)) continue;
-          const Acc* x2 = T.fv(a, h, d, e, g, k);
+          const V* x2 = w.fv(a, h, d, e, g, k);
           if (!x2) continue;
           w.mul(p, *x1, *x2);
           for (int l : T.chan(c, d)) {
             int ps = pos[static_cast<size_t>(k) * n + l];
             if (ps < 0) continue;
-            const Acc* x3 = T.fv(b, c, d, k, h, l);
+            const V* x3 = w.fv(b, c, d, k, h, l);
             if (!x3) continue;
             w.addmul(acc[static_cast<size_t>(ps)], p, *x3);
           }
@@ -386,8 +604,8 @@ void pentagon_block(const Tables& T, const PentagonBlock& B, Worker& w, BlockRes
       }
       for (size_t j = 0; j < right.size(); ++j) {
         auto [k, l] = right[j];
-        const Acc* y1 = T.fv(f, c, d, e, g, l);
-        const Acc* y2 = T.fv(a, b, l, e, f, k);
+        const V* y1 = w.fv(f, c, d, e, g, l);
+        const V* y2 = w.fv(a, b, l, e, f, k);
         lhs.clear();
         lhs.clear();
         if (y1 && y2) w.addmul(lhs, *y1, *y2);  // unreduced, like acc[j]: one reduction per equation
@@ -395,7 +613,7 @@ void pentagon_block(const Tables& T, const PentagonBlock& B, Worker& w, BlockRes
         w.sub(lhs, acc[j]);
         w.finish(lhs);
         ++r.count;
-        if (!lhs.is_zero()) {
+        if (!w.is_zero(lhs)) {
           ++r.failed;
           if (record && r.failures.size() < opt.max_failures) {
             const Model& M = T.M;
@@ -433,19 +651,21 @@ std::vector<HexBlock> hexagon_blocks(const Tables& T) {
 }
 
 // Both hexagons of one block (a,b,c,d); inverse selects the reverse equation.
-void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, Worker& w, BlockResult& r,
+template <class W>
+void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, W& w, BlockResult& r,
                    const CheckOptions& opt, bool record) {
+  using V = typename W::Value;
   const int a = B.a, b = B.b, c = B.c, d = B.d;
-  Acc lhs(T.F->cyclotomic()), t(T.F->cyclotomic()), u(T.F->cyclotomic());
+  V lhs = w.make(), t = w.make(), u = w.make();
   for (int e : T.chan(a, c)) {
     if (!T.N(e, b, d)) continue;
     for (int g : T.chan(c, b)) {
       if (!T.N(a, g, d)) continue;
       // left side
       lhs.clear();
-      const Acc* r1 = inverse ? T.riv(a, c, e) : T.rv(c, a, e);
-      const Acc* f1 = T.fv(a, c, b, d, e, g);
-      const Acc* r2 = inverse ? T.riv(b, c, g) : T.rv(c, b, g);
+      const V* r1 = inverse ? w.riv(a, c, e) : w.rv(c, a, e);
+      const V* f1 = w.fv(a, c, b, d, e, g);
+      const V* r2 = inverse ? w.riv(b, c, g) : w.rv(c, b, g);
       if (r1 && f1 && r2) {
         w.mul(t, *r1, *f1);
         w.mul(lhs, t, *r2);
@@ -453,9 +673,9 @@ void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, Worker& w, 
       }
       // minus the right side
       for (int f : T.chan(a, b)) {
-        const Acc* x1 = T.fv(c, a, b, d, e, f);
-        const Acc* x2 = inverse ? T.riv(f, c, d) : T.rv(c, f, d);
-        const Acc* x3 = T.fv(a, b, c, d, f, g);
+        const V* x1 = w.fv(c, a, b, d, e, f);
+        const V* x2 = inverse ? w.riv(f, c, d) : w.rv(c, f, d);
+        const V* x3 = w.fv(a, b, c, d, f, g);
         if (!x1 || !x2 || !x3) continue;
         w.mul(t, *x1, *x2);
         w.mul(u, t, *x3);
@@ -463,7 +683,7 @@ void hexagon_block(const Tables& T, const HexBlock& B, bool inverse, Worker& w, 
       }
       w.finish(lhs);
       ++r.count;
-      if (!lhs.is_zero()) {
+      if (!w.is_zero(lhs)) {
         ++r.failed;
         if (record && r.failures.size() < opt.max_failures) {
           const Model& M = T.M;
@@ -515,6 +735,24 @@ std::vector<int> right_ch(const Model& m, int a, int b, int c, int d) {
 }
 
 }  // namespace
+
+// Runs the pentagon (kind 0) or hexagon (kind 1, 2 = reverse) blocks with the integer kernel when the tables
+// are integral, else with the number-field kernel.
+std::vector<BlockResult> run_equations(const Tables& T, int kind, int threads, const std::string& stage,
+                                       const CheckOptions& opt, bool record, const std::vector<PentagonBlock>& pb,
+                                       const std::vector<HexBlock>& hb) {
+  auto go = [&](auto tag) {
+    using W = decltype(tag);
+    if (kind == 0)
+      return run_parallel<W>(T, pb.size(), threads, stage, opt,
+                             [&](size_t i, W& w, BlockResult& r) { pentagon_block(T, pb[i], w, r, opt, record); });
+    return run_parallel<W>(T, hb.size(), threads, stage, opt, [&](size_t i, W& w, BlockResult& r) {
+      hexagon_block(T, hb[i], kind == 2, w, r, opt, record);
+    });
+  };
+  if (T.integral && !opt.force_field_kernel) return go(IntWorker(T));
+  return go(Worker(T));
+}
 
 CheckReport check_model(const Model& M, const CheckOptions& opt) {
   auto t0 = std::chrono::steady_clock::now();
@@ -731,17 +969,14 @@ CheckReport check_model(const Model& M, const CheckOptions& opt) {
   int threads = thread_count(opt);
   {
     auto blocks = pentagon_blocks(T);
-    auto res = run_parallel(T, blocks.size(), threads, "pentagon", opt,
-                            [&](size_t i, Worker& w, BlockResult& r) { pentagon_block(T, blocks[i], w, r, opt, true); });
+    auto res = run_equations(T, 0, threads, "pentagon", opt, true, blocks, {});
     rep.checks.push_back(gather("pentagon", res, rep, opt.max_failures));
   }
   if (M.has_r) {
     auto blocks = hexagon_blocks(T);
     for (bool inv : {false, true}) {
       std::string name = inv ? "hexagon_reverse" : "hexagon";
-      auto res = run_parallel(T, blocks.size(), threads, name, opt, [&](size_t i, Worker& w, BlockResult& r) {
-        hexagon_block(T, blocks[i], inv, w, r, opt, true);
-      });
+      auto res = run_equations(T, inv ? 2 : 1, threads, name, opt, true, {}, blocks);
       rep.checks.push_back(gather(name, res, rep, opt.max_failures));
     }
   } else {
@@ -796,15 +1031,12 @@ EquationCount check_equations_only(const Model& M, int threads) {
   CheckOptions opt;
   EquationCount out;
   auto pb = pentagon_blocks(T);
-  auto res = run_parallel(T, pb.size(), threads, "pentagon", opt,
-                          [&](size_t i, Worker& w, BlockResult& r) { pentagon_block(T, pb[i], w, r, opt, false); });
+  auto res = run_equations(T, 0, threads, "pentagon", opt, false, pb, {});
   for (auto& r : res) out.pentagons += r.count, out.failed += r.failed;
   if (M.has_r) {
     auto hb = hexagon_blocks(T);
     for (bool inv : {false, true}) {
-      auto hr = run_parallel(T, hb.size(), threads, "hexagon", opt, [&](size_t i, Worker& w, BlockResult& r) {
-        hexagon_block(T, hb[i], inv, w, r, opt, false);
-      });
+      auto hr = run_equations(T, inv ? 2 : 1, threads, "hexagon", opt, false, {}, hb);
       for (auto& r : hr) out.hexagons += r.count, out.failed += r.failed;
     }
   }

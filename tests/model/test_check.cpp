@@ -153,6 +153,19 @@ TEST_CASE("negative controls: a flipped sign, a wrong phase, a missing entry, a 
   }
 }
 
+TEST_CASE("hexagon failures agree between the integer and the number-field kernels") {
+  Model m = make_su2(3);
+  m.set_r_symbol(1, 1, 2, Scalar::zeta_power(m.field, 3));  // a wrong phase (the right one is zeta)
+  CheckOptions a, b;
+  b.force_field_kernel = true;
+  CheckReport x = check_model(m, a), y = check_model(m, b);
+  CHECK(x.find("hexagon")->failed > 0);
+  CHECK(x.find("hexagon")->failed == y.find("hexagon")->failed);
+  CHECK(x.find("hexagon_reverse")->failed == y.find("hexagon_reverse")->failed);
+  REQUIRE(x.failures.size() == y.failures.size());
+  for (size_t i = 0; i < x.failures.size(); ++i) CHECK(x.failures[i].residual == y.failures[i].residual);
+}
+
 TEST_CASE("failures are reported deterministically, whatever the thread count") {
   Model m = make_su2(4);
   // damage one pentagon-relevant entry
@@ -240,10 +253,13 @@ TEST_CASE("the fast pentagon kernel agrees with a slow Scalar reference, residua
       auto key = it->first;
       Scalar damaged = it->second + Scalar(m.field, zbtest::random_cyclo(m.field->cyclotomic(), rng, 2));
       m.set_f_symbol(key[0], key[1], key[2], key[3], key[4], key[5], damaged);
+      SlowResult slow = slow_pentagons(m);
+      for (bool field_kernel : {false, true}) {  // integer kernel (default here) and number-field kernel
+      CAPTURE(field_kernel);
       CheckOptions opt;
       opt.max_failures = 100000;
+      opt.force_field_kernel = field_kernel;
       CheckReport fast = check_model(m, opt);
-      SlowResult slow = slow_pentagons(m);
       CAPTURE(k);
       CAPTURE(cyc);
       CHECK(fast.find("pentagon")->count == slow.count);
@@ -258,6 +274,7 @@ TEST_CASE("the fast pentagon kernel agrees with a slow Scalar reference, residua
         }
       CHECK(compared == slow.failed);
       CHECK(slow.failed > 0);  // the damage is seen
+      }
     }
   }
 }

@@ -37,6 +37,8 @@ struct CheckOptions {
   int threads = 0;                  ///< 0: std::thread::hardware_concurrency (at most 8)
   size_t max_failures = 100;        ///< failures listed per check (all are counted)
   long ball_digits = 15;
+  /// Use the number-field kernel even when the integer kernel applies (for tests comparing the two).
+  bool force_field_kernel = false;
   /// Called now and then from the checking thread with a stage name and the fraction done (0..1).
   std::function<void(const std::string&, double)> progress;
 };
