@@ -180,21 +180,6 @@ bool interval_bounds(const std::string& ball, long prec, std::string* upper, std
 
 namespace {
 
-// Rows where the k x k submatrix of V is invertible (V has full column rank).
-std::vector<size_t> pivot_rows(const Matrix& v) {
-  Matrix t = v.transpose();
-  // independent columns of V^T = independent rows of V, greedy
-  std::vector<size_t> chosen;
-  Matrix acc(v.field(), 0, 0);
-  for (size_t r = 0; r < v.rows() && chosen.size() < v.cols(); ++r) {
-    std::vector<size_t> trial = chosen;
-    trial.push_back(r);
-    if (t.columns(trial).rank() == trial.size()) chosen = trial;
-  }
-  if (chosen.size() != v.cols()) throw MathError("kept basis does not have full rank");
-  return chosen;
-}
-
 Matrix rows_of(const Matrix& m, const std::vector<size_t>& rows) {
   Matrix z(m.field(), rows.size(), m.cols());
   for (size_t i = 0; i < rows.size(); ++i)
@@ -227,20 +212,22 @@ ExactLeak exact_leakage(const Subspace& keep, const Matrix& w, bool unitary) {
     if (!zero && !unitary) r.action.reset();
     return r;
   }
+  // P = V G^-1 V* is a projector onto span V (G = V*V is positive definite), so W lies in span V exactly when
+  // D = W - V A vanishes, A = G^-1 V* W. In a unitary model P is P_in and leakage = tr(G^-1 D* D).
   const Matrix& v = keep.basis;
-  std::vector<size_t> piv = pivot_rows(v);
-  Matrix c = rows_of(v, piv).inverse() * rows_of(w, piv);
-  r.leak_free = (v * c == w);
-  if (r.leak_free) r.action = c;
+  Matrix vh = v.adjoint();
+  Matrix gi = (vh * v).inverse();
+  Matrix a = gi * (vh * w);
+  Matrix d = w - v * a;
+  r.leak_free = d.is_zero();
+  if (r.leak_free || unitary) r.action = a;
   if (unitary) {
-    Matrix vh = v.adjoint();
-    Matrix gi = (vh * v).inverse();
-    Matrix a = w.adjoint() * w;
-    Matrix b = vh * w;
-    Scalar leak = (gi * a).trace() - (gi * b.adjoint() * gi * b).trace();
-    if (r.leak_free && !leak.is_zero()) throw MathError("internal: leak-free image with nonzero leakage");
+    Matrix dg = d * gi;
+    Scalar leak(f);
+    for (size_t i = 0; i < d.rows(); ++i)
+      for (size_t j = 0; j < k; ++j)
+        if (!d(i, j).is_zero() && !dg(i, j).is_zero()) leak += d(i, j).conj() * dg(i, j);
     r.leakage = leak;
-    if (!r.leak_free) r.action = gi * b;
   }
   return r;
 }
