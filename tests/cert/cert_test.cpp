@@ -152,6 +152,33 @@ TEST_CASE("non-coordinate kept spaces: charge of anyons 2-3, and explicit basis 
   CHECK_THROWS_AS(subspace_from_text(sp, "1, 0, 0\n2, 0, 0", "v.txt"), InputError);
 }
 
+TEST_CASE("two qubits inside eight anyons: a non-coordinate kept space") {
+  // With anyons 7-8 unconstrained the charge of anyons 4-6 is not a tree label, so the kept space is spanned
+  // by projector columns. Braids of 1-3, of 4-6 and of 7-8 keep it; s3 and s6 do not. The leakage is
+  // cross-checked against k - tr(G^-1 B* G^-1 B), B = V* rho V, which holds because rho is unitary.
+  Model m = zbtest::fibonacci_model();
+  std::vector<int> eight(8, 1);
+  BraidGenerators g(m, 0);
+  const FusionSpace& sp = g.space(eight);
+  Subspace keep = subspace_from_groups(sp, parse_keep(m, "1-3:t,4-6:t", 8));
+  REQUIRE_FALSE(keep.coordinate);
+  CertifyOptions ex;
+  ex.method = Method::kExact;
+  std::mt19937_64 rng(99);
+  for (int trial = 0; trial < 3; ++trial)
+    CHECK(certify(g, eight, keep, random_word(rng, {1, 2, 4, 5, 7}, 10), ex).verdict == "leak-free");
+  for (const char* w : {"s3", "s6", "s3 s6 s1", "s6^-1 s5"}) {
+    CAPTURE(w);
+    CertifyResult r = certify(g, eight, keep, parse_word(w), ex);
+    CHECK(r.verdict == "leaks");
+    const Matrix& v = keep.basis;
+    Matrix gi = (v.adjoint() * v).inverse();
+    Matrix b = v.adjoint() * *r.image;
+    Scalar other = Scalar(m.field, static_cast<long>(keep.kept())) - (gi * b.adjoint() * gi * b).trace();
+    CHECK(*r.leakage == other);
+  }
+}
+
 TEST_CASE("decimal bounds round in the stated direction") {
   arf_t x;
   arf_init(x);
