@@ -473,19 +473,28 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
   long cap = std::max<long>(static_cast<long>(prec) * 8, 256 + 4 * static_cast<long>(x.word.size()));
   cap = std::min<long>(cap, 1 << 18);
   std::string last_problem;
-  for (long p = static_cast<long>(prec); p <= cap; p *= 2) {
-    acb_mat_t acc, g, tmp;
+  // a plain product loses up to about a bit per letter: start there rather than at the producer's precision
+  long start = std::max<long>(static_cast<long>(prec), 64 + static_cast<long>(x.word.size()));
+  for (long p = std::min(start, cap); p <= cap; p *= 2) {
+    acb_mat_t acc, tmp;
     acb_mat_init(acc, static_cast<slong>(dim), static_cast<slong>(k));
     x.keep.ball(acc, p);
-    std::map<const Matrix*, acb_mat_struct> balls;
+    std::map<const Matrix*, std::unique_ptr<acb_mat_struct, void (*)(acb_mat_struct*)>> balls;
     for (const Matrix* mm : seq) {
-      acb_mat_init(g, static_cast<slong>(mm->rows()), static_cast<slong>(mm->cols()));
-      mm->ball(g, p);
+      auto it = balls.find(mm);
+      if (it == balls.end()) {
+        auto* g = new acb_mat_struct;
+        acb_mat_init(g, static_cast<slong>(mm->rows()), static_cast<slong>(mm->cols()));
+        mm->ball(g, p);
+        it = balls.emplace(mm, std::unique_ptr<acb_mat_struct, void (*)(acb_mat_struct*)>(g, [](acb_mat_struct* q) {
+                             acb_mat_clear(q);
+                             delete q;
+                           })).first;
+      }
       acb_mat_init(tmp, static_cast<slong>(mm->rows()), static_cast<slong>(k));
-      acb_mat_mul(tmp, g, acc, p);
+      acb_mat_mul(tmp, it->second.get(), acc, p);
       acb_mat_swap(tmp, acc);
       acb_mat_clear(tmp);
-      acb_mat_clear(g);
     }
     if (!coord_rows.empty() || coordinate) {
       // the kept basis is a set of tree basis vectors: leakage = sum of |W_rj|^2 over rows r outside it
