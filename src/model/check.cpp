@@ -1043,9 +1043,16 @@ EquationCount check_equations_only(const Model& M, int threads) {
   return out;
 }
 
-EquationCount evaluate_equations_double(const Model& M, double* max_residual) {
+EquationCount evaluate_equations_double(const Model& M, double* max_residual, double* loop_seconds, int repeat) {
   Tables T(M);
   T.make_double();
+  auto pblocks = pentagon_blocks(T);
+  auto hblocks = hexagon_blocks(T);
+  auto t0 = std::chrono::steady_clock::now();
+  EquationCount out;
+  double worst = 0;
+  for (int rep = 0; rep < std::max(1, repeat); ++rep) {
+  out = EquationCount{};
   using C = std::complex<double>;
   auto F = [&](int a, int b, int c, int d, int e, int f) {
     int i = T.fid(a, b, c, d, e, f);
@@ -1055,10 +1062,8 @@ EquationCount evaluate_equations_double(const Model& M, double* max_residual) {
     int i = T.rid_(a, b, c);
     return i < 0 ? C(0) : (inv ? T.rid : T.rd)[static_cast<size_t>(i)];
   };
-  EquationCount out;
-  double worst = 0;
   int n = T.n;
-  for (const PentagonBlock& B : pentagon_blocks(T)) {
+  for (const PentagonBlock& B : pblocks) {
     const int a = B.a, b = B.b, c = B.c, d = B.d, e = B.e;
     std::vector<std::pair<int, int>> right;
     std::vector<int> pos(static_cast<size_t>(n) * n, -1);
@@ -1094,7 +1099,7 @@ EquationCount evaluate_equations_double(const Model& M, double* max_residual) {
   }
   if (M.has_r)
     for (bool inv : {false, true})
-      for (const HexBlock& B : hexagon_blocks(T)) {
+      for (const HexBlock& B : hblocks) {
         const int a = B.a, b = B.b, c = B.c, d = B.d;
         for (int e : T.chan(a, c)) {
           if (!T.N(e, b, d)) continue;
@@ -1109,6 +1114,9 @@ EquationCount evaluate_equations_double(const Model& M, double* max_residual) {
           }
         }
       }
+  }
+  if (loop_seconds)
+    *loop_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count() / std::max(1, repeat);
   if (max_residual) *max_residual = worst;
   return out;
 }

@@ -107,7 +107,9 @@ class Loader {
     const toml::table& ft = *fn->as_table();
     for (auto&& [k, v] : ft)
       if (k.str() != "conductor" && k.str() != "radicands")
-        fail(&v, "field." + std::string(k.str()), "unknown key; expected conductor or radicands");
+        fail(&v, "field." + std::string(k.str()),
+             "unknown key; expected conductor or radicands (in TOML, keys after a [table] header belong to that "
+             "table: put top-level keys such as labels before the first [table])");
     const toml::node* c = ft.get("conductor");
     if (!c) fail(fn, "field.conductor", "missing (expected a positive integer N for Q(zeta_N))");
     if (!c->is_integer() || *c->value<int64_t>() < 1)

@@ -61,6 +61,8 @@ struct EquationCount {
 EquationCount check_equations_only(const Model& m, int threads = 1);
 /// The same equations in complex double (for comparison in benchmarks): returns the number of equations and
 /// the largest |residual| seen. Not a check: floating point decides nothing in zetabraid.
-EquationCount evaluate_equations_double(const Model& m, double* max_residual);
+/// loop_seconds (optional) receives the time of the evaluation loops alone (tables excluded).
+EquationCount evaluate_equations_double(const Model& m, double* max_residual, double* loop_seconds = nullptr,
+                                        int repeat = 1);
 
 }  // namespace zb
