@@ -267,6 +267,20 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
       std::string other = verdict == "leak-free" ? "leaks" : "leak-free";
       g2.replace(p, std::string("VERDICT = \"" + verdict + "\"").size(), "VERDICT = \"" + other + "\"");
       if (c.method == "exact") CHECK(zbtest::gp(g2).find("zetabraid-gp: REJECTED") != std::string::npos);
+      // negative controls on the numbers: a wrong exact leakage, an upper bound below the true leakage
+      std::string g3 = slurp(gpf);
+      if (c.method == "exact" && verdict == "leaks") {
+        auto q = g3.find("\nLEAK = ");
+        REQUIRE(q != std::string::npos);
+        g3.insert(q + 8, "1/1000 + ");
+        CHECK(zbtest::gp(g3).find("zetabraid-gp: REJECTED: the exact leakage differs") != std::string::npos);
+      }
+      if (c.method == "interval" && verdict == "leaks") {
+        auto q = g3.find("\nUPPER = ");
+        REQUIRE(q != std::string::npos);
+        g3.replace(q, g3.find(';', q) - q, "\nUPPER = 1/10^6");
+        CHECK(zbtest::gp(g3).find("zetabraid-gp: REJECTED: the leakage exceeds") != std::string::npos);
+      }
     }
     // tampering: each edit must be rejected with exit 1
     auto j0 = nlohmann::ordered_json::parse(text);
