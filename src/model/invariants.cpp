@@ -221,6 +221,25 @@ Invariants compute_invariants(const Model& m, long) {
           if (s != Scalar(F, m.fusion(a, b, c))) inv.verlinde_ok = false;
         }
   }
+  if (inv.modular) {
+    // Frobenius-Schur indicators a second way, from twists and dimensions (formula of Bantay 1997, common
+    // practice for modular categories); must agree with the F-symbol values.
+    for (int a = 0; a < n; ++a) {
+      Scalar s(F);
+      for (int b = 0; b < n; ++b)
+        for (int c = 0; c < n; ++c)
+          if (m.fusion(b, c, a)) {
+            Scalar q = inv.twists[static_cast<size_t>(b)] / inv.twists[static_cast<size_t>(c)];
+            s += Scalar(F, m.fusion(b, c, a)) * inv.dims[static_cast<size_t>(b)] * inv.dims[static_cast<size_t>(c)] * q * q;
+          }
+      s /= inv.global_dim2;
+      if (s != Scalar(F, inv.fs[static_cast<size_t>(a)])) {
+        inv.fs_twist_formula_ok = false;
+        inv.notes.push_back(fmt::format("FS indicator of {} from the twist formula is {}, from F it is {}",
+                                        m.labels[static_cast<size_t>(a)], s.str(), inv.fs[static_cast<size_t>(a)]));
+      }
+    }
+  }
   inv.S = std::move(S);
   inv.T = std::move(T);
   return inv;
@@ -273,6 +292,7 @@ std::string invariants_json(const Model& m, const Invariants& inv, long digits) 
   }
   j["modular"] = inv.modular;
   j["verlinde"] = ojson{{"ok", inv.verlinde_ok}, {"checked", inv.verlinde_checked}};
+  if (inv.modular) j["fs_twist_formula_ok"] = inv.fs_twist_formula_ok;
   j["notes"] = inv.notes;
   return j.dump();
 }

@@ -278,3 +278,36 @@ TEST_CASE("the fast pentagon kernel agrees with a slow Scalar reference, residua
     }
   }
 }
+
+TEST_CASE("hexagon counts and failures agree with a slow Scalar reference") {
+  for (int k : {2, 3}) {
+    Model m = make_su2(k);
+    m.set_r_symbol(1, 1, 0, -*m.r_symbol(1, 1, 0));  // damage: flipped sign of R^{1/2 1/2}_0
+    long count = 0, failed = 0;
+    const int n = m.label_count();
+    auto F = [&](int a, int b, int c, int d, int e, int f) {
+      const Scalar* v = m.f_symbol(a, b, c, d, e, f);
+      return v ? *v : Scalar(m.field);
+    };
+    auto R = [&](int a, int b, int c) {
+      const Scalar* v = m.r_symbol(a, b, c);
+      return v ? *v : Scalar(m.field);
+    };
+    for (int a = 0; a < n; ++a)
+      for (int b = 0; b < n; ++b)
+        for (int c = 0; c < n; ++c)
+          for (int d = 0; d < n; ++d)
+            for (int e = 0; e < n; ++e)
+              for (int g = 0; g < n; ++g) {
+                if (!m.fusion(a, c, e) || !m.fusion(e, b, d) || !m.fusion(c, b, g) || !m.fusion(a, g, d)) continue;
+                Scalar res = R(c, a, e) * F(a, c, b, d, e, g) * R(c, b, g);
+                for (int f = 0; f < n; ++f) res -= F(c, a, b, d, e, f) * R(c, f, d) * F(a, b, c, d, f, g);
+                ++count;
+                failed += !res.is_zero();
+              }
+    CheckReport r = check_model(m);
+    CHECK(r.find("hexagon")->count == count);
+    CHECK(r.find("hexagon")->failed == failed);
+    CHECK(failed > 0);
+  }
+}

@@ -178,3 +178,24 @@ TEST_CASE("PARI/GP as an independent oracle for S-matrix entries") {
     }
   }
 }
+
+TEST_CASE("the integer spins of SU(2)_3 form a Fibonacci-type model") {
+  // SU(2)_3 restricted to spins 0 and 1 has 1 x 1 = 0 + 1, d_1 = [3]_q = phi, and the same
+  // central charge 14/5 mod 8 as the Fibonacci model (from memory; e.g. Rowell-Stong-Wang 2009).
+  Model m = load_model(zbtest::source_dir() + "/models/su2_k3_even.toml");
+  Invariants inv = compute_invariants(m);
+  CHECK(inv.dims[1] == parse_expression("(1 + sqrt(5))/2", m.field));
+  CHECK(inv.c_num == 14);
+  CHECK(inv.c_den == 5);
+  CHECK(inv.fs_twist_formula_ok);
+}
+
+TEST_CASE("FS indicators from F agree with the twist formula; a damaged twist is caught") {
+  for (int k = 1; k <= 5; ++k) CHECK(compute_invariants(make_su2(k)).fs_twist_formula_ok);
+  // negative control: change R^{1/2 1/2}_0 so that theta_{1/2} changes; the two ways then disagree (or
+  // the model stops being modular), so the cross-check can fail.
+  Model m = make_su2(2);
+  m.set_r_symbol(1, 1, 0, -*m.r_symbol(1, 1, 0));
+  Invariants inv = compute_invariants(m);
+  CHECK((!inv.fs_twist_formula_ok || !inv.modular || !inv.verlinde_ok));
+}

@@ -25,6 +25,8 @@ struct Invariants {
   bool modular = false;              ///< S invertible
   bool verlinde_ok = true;           ///< Verlinde formula reproduces N (modular models)
   long verlinde_checked = 0;
+  /// Second way to the FS indicators (modular models): nu_a = (1/D^2) sum_{b,c} N_{bc}^a d_b d_c (theta_b/theta_c)^2.
+  bool fs_twist_formula_ok = true;
   std::vector<std::string> notes;
 
   explicit Invariants(FieldPtr f) : global_dim2(f), global_dim(f), gauss_plus(f), gauss_phase(f) {}
