@@ -70,6 +70,23 @@ PolyMatrix PolyMatrix::identity(long n) {
   return m;
 }
 
+PolyMatrix PolyMatrix::from_parts(long rows, long cols, std::vector<std::pair<RadicalMask, fmpz_poly_mat_struct*>> parts,
+                                  const fmpz* den) {
+  std::sort(parts.begin(), parts.end(), [](const auto& x, const auto& y) { return x.first < y.first; });
+  PolyMatrix m(rows, cols);
+  for (auto& [s, pm] : parts) {
+    if (!m.masks_.empty() && m.masks_.back() == s) throw MathError("repeated mask in PolyMatrix::from_parts");
+    m.masks_.push_back(s);
+    m.parts_.push_back(pm);
+  }
+  if (den) {
+    if (fmpz_sgn(den) <= 0) throw MathError("PolyMatrix denominator must be positive");
+    fmpz_set(m.den_, den);
+  }
+  m.normalise();
+  return m;
+}
+
 PolyMatrix::PolyMatrix(const PolyMatrix& o) : r_(o.r_), c_(o.c_), masks_(o.masks_) {
   for (auto* p : o.parts_) {
     parts_.push_back(new_mat(r_, c_));

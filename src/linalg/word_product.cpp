@@ -11,6 +11,7 @@
 
 #include "zetabraid/error.hpp"
 #include "zetabraid/linalg/poly_matrix.hpp"
+#include "sparse_kernel.hpp"
 
 namespace zb {
 
@@ -47,6 +48,20 @@ std::uint64_t mulmod61(std::uint64_t a, std::uint64_t b) {
   return s >= kHashMod ? s - kHashMod : s;
 }
 
+// Smallest period p of seq (prefix function): seq = w^q u with |w| = p, u a prefix of w.
+size_t smallest_period(const std::vector<Token>& seq) {
+  size_t n = seq.size();
+  if (n == 0) return 0;
+  std::vector<size_t> pi(n, 0);
+  for (size_t i = 1; i < n; ++i) {
+    size_t k = pi[i - 1];
+    while (k > 0 && !(seq[i] == seq[k])) k = pi[k - 1];
+    if (seq[i] == seq[k]) ++k;
+    pi[i] = k;
+  }
+  return n - pi[n - 1];
+}
+
 class ExactTree {
  public:
   ExactTree(const PolyContext& ctx, const std::vector<PolyMatrix>& leaves, const ProductOptions& opt)
@@ -56,16 +71,7 @@ class ExactTree {
   PolyMatrix product(const std::vector<Token>& seq) {
     if (seq.empty()) throw MathError("empty token sequence");
     if (opt_.share_repeats && seq.size() >= 4) {
-      // Smallest period p of seq (prefix function): seq = w^q u with |w| = p, u a prefix of w.
-      size_t n = seq.size();
-      std::vector<size_t> pi(n, 0);
-      for (size_t i = 1; i < n; ++i) {
-        size_t k = pi[i - 1];
-        while (k > 0 && !(seq[i] == seq[k])) k = pi[k - 1];
-        if (seq[i] == seq[k]) ++k;
-        pi[i] = k;
-      }
-      size_t p = n - pi[n - 1];
+      size_t n = seq.size(), p = smallest_period(seq);
       if (p <= n / 2) {
         std::vector<Token> w(seq.begin(), seq.begin() + static_cast<long>(p));
         size_t q = n / p, r = n % p;
@@ -139,7 +145,11 @@ class ExactTree {
     PolyMatrix node(size_t lo, size_t hi, int depth) {
       if (hi - lo == 1) return t.power(seq[lo]);
       auto k = key(lo, hi);
-      bool shared = t.opt_.share_repeats && count[k] > 1;
+      bool shared = false;
+      if (t.opt_.share_repeats) {
+        auto c = count.find(k);
+        shared = c != count.end() && c->second > 1;
+      }
       if (shared) {
         std::lock_guard<std::mutex> lock(mu);
         auto it = memo.find(k);
@@ -222,13 +232,97 @@ Matrix word_product_naive(const std::vector<const Matrix*>& letters, const Matri
 
 Matrix word_product(const std::vector<const Matrix*>& letters) { return word_product(letters, ProductOptions{}); }
 
+namespace {
+
+// Sparse int64 kernels for every distinct letter, or empty when some letter does not qualify.
+std::vector<detail::SparseLetter> kernels(const std::vector<PolyMatrix>& leaves, const PolyContext& ctx) {
+  std::vector<detail::SparseLetter> k(leaves.size());
+  for (size_t i = 0; i < leaves.size(); ++i)
+    if (!detail::SparseLetter::make(&k[i], leaves[i], ctx, ctx.field()->radicand_count())) return {};
+  return k;
+}
+
+// Letters [lo, hi) of the word (leaf indices) multiplied in int64 blocks while the coefficient bound allows;
+// appends the block products (application order) to out.
+void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, size_t lo, size_t hi,
+                  const std::vector<detail::SparseLetter>& kern, const std::vector<PolyMatrix>& leaves,
+                  const PolyContext& ctx) {
+  const long n = ctx.degree(), masks = 1L << ctx.field()->radicand_count();
+  bool empty = true;
+  detail::SmallBlock acc;
+  for (size_t x = lo; x < hi; ++x) {
+    const detail::SparseLetter& g = kern[seq[x]];
+    if (empty) acc = detail::SmallBlock::identity(g.cols(), n, masks);
+    if (!detail::fits_small(g, acc)) {
+      if (!empty) {
+        out->push_back(acc.to_poly(ctx));
+        acc = detail::SmallBlock::identity(g.cols(), n, masks);
+        empty = true;
+      }
+      if (!detail::fits_small(g, acc)) {
+        out->push_back(leaves[seq[x]]);
+        continue;
+      }
+    }
+    acc = detail::apply(g, acc);
+    empty = false;
+  }
+  if (!empty) out->push_back(acc.to_poly(ctx));
+}
+
+}  // namespace
+
 Matrix word_product(const std::vector<const Matrix*>& letters, const ProductOptions& opt) {
   if (letters.empty()) throw MathError("empty word: no matrix shape to return");
   check_shapes(letters, nullptr);
   PolyContext ctx(letters.front()->field());
   Converted c = convert(letters, ctx, opt.share_repeats);
-  ExactTree tree(ctx, c.leaves, opt);
-  return tree.product(c.tokens).to_matrix(ctx);
+  // Words with long runs or a period go through the tree with powers and shared subtrees; others are first cut
+  // into int64 blocks (sparse letters, exact coefficient bounds), then the blocks go through the tree.
+  bool repetitive = opt.share_repeats && (c.tokens.size() * 4 < letters.size() * 3 ||
+                                          (c.tokens.size() >= 4 && smallest_period(c.tokens) <= c.tokens.size() / 2));
+  std::vector<detail::SparseLetter> kern;
+  if (!repetitive && opt.small_kernel) kern = kernels(c.leaves, ctx);
+  if (kern.empty()) {
+    ExactTree tree(ctx, c.leaves, opt);
+    return tree.product(c.tokens).to_matrix(ctx);
+  }
+  std::vector<size_t> seq;
+  for (const Token& t : c.tokens)
+    for (unsigned long e = 0; e < t.exp; ++e) seq.push_back(t.leaf);
+  int parts = std::max(1, std::min<int>(opt.threads, static_cast<int>(seq.size() / 64) + 1));
+  std::vector<std::vector<PolyMatrix>> blocks(static_cast<size_t>(parts));
+  {
+    std::vector<std::thread> th;
+    std::vector<std::exception_ptr> err(static_cast<size_t>(parts));
+    for (int p = 0; p < parts; ++p) {
+      size_t lo = seq.size() * static_cast<size_t>(p) / static_cast<size_t>(parts);
+      size_t hi = seq.size() * static_cast<size_t>(p + 1) / static_cast<size_t>(parts);
+      auto job = [&, p, lo, hi] {
+        try {
+          small_blocks(&blocks[static_cast<size_t>(p)], seq, lo, hi, kern, c.leaves, ctx);
+        } catch (...) {
+          err[static_cast<size_t>(p)] = std::current_exception();
+        }
+      };
+      if (p + 1 < parts)
+        th.emplace_back(job);
+      else
+        job();
+    }
+    for (auto& t : th) t.join();
+    for (auto& e : err)
+      if (e) std::rethrow_exception(e);
+  }
+  std::vector<PolyMatrix> all;
+  for (auto& b : blocks)
+    for (auto& m : b) all.push_back(std::move(m));
+  std::vector<Token> toks;
+  for (size_t i = 0; i < all.size(); ++i) toks.push_back({i, 1});
+  ProductOptions o = opt;
+  o.share_repeats = false;
+  ExactTree tree(ctx, all, o);
+  return tree.product(toks).to_matrix(ctx);
 }
 
 Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start) {
@@ -245,6 +339,40 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
   if (dim > opt.columns_ratio * k && dim > opt.columns_min_dimension) {
     // Column-wise: acc <- L acc, visiting only the nonzero entries of each letter.
     Converted c = convert(letters, ctx, false);
+    std::vector<detail::SparseLetter> kern;
+    if (opt.small_kernel) kern = kernels(c.leaves, ctx);
+    if (!kern.empty()) {
+      const long n = ctx.degree(), masks = 1L << ctx.field()->radicand_count();
+      detail::SmallBlock small;
+      bool is_small = detail::SmallBlock::from_poly(&small, s, n, masks);
+      detail::BigBlock big;
+      if (!is_small) {
+        // Start too large for int64: go through fmpz from the beginning.
+        detail::SmallBlock zero{s.rows(), s.cols(), n, masks, {}};
+        zero.a.assign(static_cast<size_t>(masks * s.rows() * s.cols() * n), 0);
+        big = detail::BigBlock(zero);
+        for (size_t q = 0; q < s.mask_count(); ++q)
+          for (long i = 0; i < s.rows(); ++i)
+            for (long j = 0; j < s.cols(); ++j) {
+              const fmpz_poly_struct* e = fmpz_poly_mat_entry(s.part(q), i, j);
+              for (long t = 0; t < fmpz_poly_length(e); ++t)
+                fmpz_set(&big.a[static_cast<size_t>(((static_cast<long>(s.mask(q)) * s.rows() + i) * s.cols() + j) * n + t)],
+                         fmpz_poly_get_coeff_ptr(e, t));
+            }
+      }
+      for (const Token& t : c.tokens) {
+        const detail::SparseLetter& g = kern[t.leaf];
+        if (is_small && !detail::fits_small(g, small)) {
+          big = detail::BigBlock(small);
+          is_small = false;
+        }
+        if (is_small)
+          small = detail::apply(g, small);
+        else
+          big = detail::apply(g, big);
+      }
+      return (is_small ? small.to_poly(ctx, s.denominator()) : big.to_poly(ctx, s.denominator())).to_matrix(ctx);
+    }
     std::vector<PolyMatrix::Nonzeros> nz;
     for (const auto& l : c.leaves) nz.push_back(l.nonzeros());
     PolyMatrix acc = std::move(s);

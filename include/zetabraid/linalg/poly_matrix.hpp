@@ -57,6 +57,11 @@ class PolyMatrix {
   /// Exact conversion back (canonical Scalars).
   Matrix to_matrix(const PolyContext& ctx) const;
 
+  /// Takes ownership of the given parts (each rows x cols, entries reduced mod Phi_N, integer); den = 1.
+  /// With den given, the value is parts / den.
+  static PolyMatrix from_parts(long rows, long cols, std::vector<std::pair<RadicalMask, fmpz_poly_mat_struct*>> parts,
+                               const fmpz* den = nullptr);
+
   PolyMatrix(const PolyMatrix& o);
   PolyMatrix(PolyMatrix&& o) noexcept;
   PolyMatrix& operator=(const PolyMatrix& o);

@@ -28,6 +28,9 @@ struct ProductOptions {
   size_t columns_min_dimension = 24;
   /// Detect runs / periodic words and compute the repeated part once (off only for tests and measurements).
   bool share_repeats = true;
+  /// Use the int64 sparse-letter kernel (integral letters, <= 4 radicands) for blocks of letters while a
+  /// rigorous coefficient bound stays below 2^62 (off only for tests and measurements).
+  bool small_kernel = true;
 };
 
 /// Exact product L_n ... L_1 (application order). Shapes must compose.

@@ -1,0 +1,210 @@
+#include "sparse_kernel.hpp"
+
+#include <cmath>
+#include <cstdlib>
+#include <map>
+
+#include "zetabraid/error.hpp"
+
+namespace zb::detail {
+
+bool SparseLetter::make(SparseLetter* out, const PolyMatrix& g, const PolyContext& ctx, int radicands) {
+  if (radicands > 4 || !fmpz_is_one(g.denominator())) return false;
+  const long n = ctx.degree();
+  const int nm = 1 << radicands;
+  out->rows_ = g.rows();
+  out->cols_ = g.cols();
+  out->terms_.clear();
+  fmpz_poly_t h, xt;
+  fmpz_poly_init(h);
+  fmpz_poly_init(xt);
+  bool ok = true;
+  // Per (row i, result mask T): sum of ||M||_inf, for beta.
+  std::map<std::pair<long, int>, double> rowsum;
+  for (size_t k = 0; k < g.mask_count() && ok; ++k) {
+    RadicalMask s = g.mask(k);
+    const fmpz_poly_mat_struct* part = g.part(k);
+    for (long i = 0; i < g.rows() && ok; ++i)
+      for (long c = 0; c < g.cols() && ok; ++c) {
+        const fmpz_poly_struct* e = fmpz_poly_mat_entry(part, i, c);
+        if (fmpz_poly_is_zero(e)) continue;
+        for (int u = 0; u < nm && ok; ++u) {
+          RadicalMask common = s & static_cast<RadicalMask>(u);
+          fmpz_poly_set(h, e);
+          if (common) {
+            const auto& rp = ctx.radicand_product(common);
+            if (!fmpz_is_one(rp.den)) {
+              ok = false;
+              break;
+            }
+            fmpz_poly_mul(h, h, rp.num);
+            fmpz_poly_rem(h, h, ctx.modulus());
+          }
+          Term t{i, c, u, static_cast<int>(s ^ static_cast<RadicalMask>(u)), {}};
+          std::vector<double> rabs(static_cast<size_t>(n), 0.0);
+          for (long col = 0; col < n && ok; ++col) {
+            fmpz_poly_zero(xt);
+            fmpz_poly_set_coeff_ui(xt, col, 1);
+            fmpz_poly_mul(xt, xt, h);
+            if (fmpz_poly_length(xt) > n) fmpz_poly_rem(xt, xt, ctx.modulus());
+            for (long r = 0; r < fmpz_poly_length(xt); ++r) {
+              const fmpz* v = fmpz_poly_get_coeff_ptr(xt, r);
+              if (fmpz_is_zero(v)) continue;
+              if (fmpz_bits(v) > 30) {
+                ok = false;
+                break;
+              }
+              slong sv = fmpz_get_si(v);
+              t.m.push_back({static_cast<std::int32_t>(r), static_cast<std::int32_t>(col), sv});
+              rabs[static_cast<size_t>(r)] += std::fabs(static_cast<double>(sv));
+            }
+          }
+          double norm = 0;
+          for (double x : rabs) norm = std::max(norm, x);
+          rowsum[{i, t.to}] += norm;
+          if (!t.m.empty()) out->terms_.push_back(std::move(t));
+        }
+      }
+  }
+  fmpz_poly_clear(xt);
+  fmpz_poly_clear(h);
+  if (!ok) return false;
+  out->beta_ = 0;
+  for (const auto& [key, v] : rowsum) out->beta_ = std::max(out->beta_, v);
+  return true;
+}
+
+std::int64_t SmallBlock::max_abs() const {
+  std::int64_t m = 0;
+  for (std::int64_t v : a) m = std::max(m, v < 0 ? -v : v);
+  return m;
+}
+
+SmallBlock SmallBlock::identity(long d, long n, long masks) {
+  SmallBlock b{d, d, n, masks, std::vector<std::int64_t>(static_cast<size_t>(masks * d * d * n), 0)};
+  for (long i = 0; i < d; ++i) b.a[static_cast<size_t>((i * d + i) * n)] = 1;
+  b.bound = 1;
+  return b;
+}
+
+bool SmallBlock::from_poly(SmallBlock* out, const PolyMatrix& p, long n, long masks) {
+  *out = SmallBlock{p.rows(), p.cols(), n, masks, std::vector<std::int64_t>(static_cast<size_t>(masks * p.rows() * p.cols() * n), 0)};
+  for (size_t q = 0; q < p.mask_count(); ++q) {
+    long u = static_cast<long>(p.mask(q));
+    if (u >= masks) return false;
+    for (long i = 0; i < p.rows(); ++i)
+      for (long j = 0; j < p.cols(); ++j) {
+        const fmpz_poly_struct* e = fmpz_poly_mat_entry(p.part(q), i, j);
+        for (long t = 0; t < fmpz_poly_length(e); ++t) {
+          const fmpz* v = fmpz_poly_get_coeff_ptr(e, t);
+          if (fmpz_bits(v) > 40) return false;
+          out->a[static_cast<size_t>(((u * p.rows() + i) * p.cols() + j) * n + t)] = fmpz_get_si(v);
+        }
+      }
+  }
+  return true;
+}
+
+bool fits_small(const SparseLetter& g, SmallBlock& x) {
+  constexpr double kLimit = 4.0e18;  // < 2^62, with margin for the double rounding of beta and the product
+  if (x.bound >= 0 && x.bound * g.beta() < kLimit) return true;
+  x.bound = static_cast<double>(x.max_abs());  // exact rescan
+  return x.bound * g.beta() < kLimit;
+}
+
+SmallBlock apply(const SparseLetter& g, const SmallBlock& x) {
+  if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
+  SmallBlock y{g.rows(), x.k, x.n, x.masks, std::vector<std::int64_t>(static_cast<size_t>(x.masks * g.rows() * x.k * x.n), 0)};
+  const long k = x.k, n = x.n;
+  if (x.bound >= 0) y.bound = x.bound * g.beta() * (1 + 1e-12);
+  for (const auto& t : g.terms()) {
+    std::int64_t* dst = y.a.data() + ((t.to * y.rows + t.i) * k) * n;
+    const std::int64_t* src = x.a.data() + ((t.from * x.rows + t.c) * k) * n;
+    for (const KernelEntry& e : t.m)
+      for (long j = 0; j < k; ++j) dst[j * n + e.r] += e.v * src[j * n + e.t];
+  }
+  return y;
+}
+
+BigBlock::BigBlock(long r, long kk, long nn, long m) : rows(r), k(kk), n(nn), masks(m), a(static_cast<size_t>(m * r * kk * nn)) {
+  for (auto& v : a) fmpz_init(&v);
+}
+
+BigBlock::BigBlock(const SmallBlock& s) : BigBlock(s.rows, s.k, s.n, s.masks) {
+  for (size_t i = 0; i < a.size(); ++i) fmpz_set_si(&a[i], s.a[i]);
+}
+
+BigBlock::BigBlock(BigBlock&& o) noexcept : rows(o.rows), k(o.k), n(o.n), masks(o.masks), a(std::move(o.a)) { o.a.clear(); }
+
+BigBlock& BigBlock::operator=(BigBlock&& o) noexcept {
+  if (this != &o) {
+    for (auto& v : a) fmpz_clear(&v);
+    rows = o.rows;
+    k = o.k;
+    n = o.n;
+    masks = o.masks;
+    a = std::move(o.a);
+    o.a.clear();
+  }
+  return *this;
+}
+
+BigBlock::~BigBlock() {
+  for (auto& v : a) fmpz_clear(&v);
+}
+
+BigBlock apply(const SparseLetter& g, const BigBlock& x) {
+  if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
+  BigBlock y(g.rows(), x.k, x.n, x.masks);
+  const long k = x.k, n = x.n;
+  for (const auto& t : g.terms()) {
+    fmpz* dst = y.a.data() + ((t.to * y.rows + t.i) * k) * n;
+    const fmpz* src = x.a.data() + ((t.from * x.rows + t.c) * k) * n;
+    for (const KernelEntry& e : t.m)
+      for (long j = 0; j < k; ++j) {
+        const fmpz* s = src + j * n + e.t;
+        if (fmpz_is_zero(s)) continue;
+        if (e.v == 1)
+          fmpz_add(dst + j * n + e.r, dst + j * n + e.r, s);
+        else if (e.v == -1)
+          fmpz_sub(dst + j * n + e.r, dst + j * n + e.r, s);
+        else if (e.v > 0)  // not fmpz_addmul_si: in FLINT 2.9 it can leave a small value in non-canonical mpz form
+          fmpz_addmul_ui(dst + j * n + e.r, s, static_cast<ulong>(e.v));
+        else
+          fmpz_submul_ui(dst + j * n + e.r, s, static_cast<ulong>(-e.v));
+      }
+  }
+  return y;
+}
+
+namespace {
+template <class Get>
+PolyMatrix to_poly_impl(long rows, long k, long n, long masks, const fmpz* den, Get get) {
+  std::vector<std::pair<RadicalMask, fmpz_poly_mat_struct*>> parts;
+  for (long u = 0; u < masks; ++u) {
+    auto* pm = new fmpz_poly_mat_struct;
+    fmpz_poly_mat_init(pm, rows, k);
+    for (long i = 0; i < rows; ++i)
+      for (long j = 0; j < k; ++j) {
+        fmpz_poly_struct* e = fmpz_poly_mat_entry(pm, i, j);
+        for (long t = n - 1; t >= 0; --t) get(e, ((u * rows + i) * k + j) * n + t, t);
+      }
+    parts.emplace_back(static_cast<RadicalMask>(u), pm);
+  }
+  return PolyMatrix::from_parts(rows, k, std::move(parts), den);
+}
+}  // namespace
+
+PolyMatrix SmallBlock::to_poly(const PolyContext&, const fmpz* den) const {
+  return to_poly_impl(rows, k, n, masks, den, [&](fmpz_poly_struct* e, long idx, long t) {
+    if (a[static_cast<size_t>(idx)]) fmpz_poly_set_coeff_si(e, t, a[static_cast<size_t>(idx)]);
+  });
+}
+
+PolyMatrix BigBlock::to_poly(const PolyContext&, const fmpz* den) const {
+  return to_poly_impl(rows, k, n, masks, den, [&](fmpz_poly_struct* e, long idx, long t) {
+    if (!fmpz_is_zero(&a[static_cast<size_t>(idx)])) fmpz_poly_set_coeff_fmpz(e, t, &a[static_cast<size_t>(idx)]);
+  });
+}
+
+}  // namespace zb::detail
