@@ -27,6 +27,8 @@ const CheckCount* CheckReport::find(const std::string& name) const {
 
 namespace {
 
+constexpr int kMaxCheckLabels = 128;
+
 // A sparse exact value: sum_i c[i] * sqrt(d_{m[i]}), reusable storage (size n <= capacity).
 struct Acc {
   std::vector<RadicalMask> m;
@@ -550,17 +552,18 @@ struct PentagonBlock {
 std::vector<PentagonBlock> pentagon_blocks(const Tables& T) {
   std::vector<PentagonBlock> out;
   int n = T.n;
+  std::vector<char> seen(static_cast<size_t>(n));
   for (int a = 0; a < n; ++a)
     for (int b = 0; b < n; ++b)
       for (int c = 0; c < n; ++c)
-        for (int d = 0; d < n; ++d)
-          for (int e = 0; e < n; ++e) {
-            bool any = false;
-            for (int f : T.chan(a, b))
-              for (int g : T.chan(f, c))
-                if (T.N(g, d, e)) any = true;
-            if (any) out.push_back({a, b, c, d, e});
-          }
+        for (int d = 0; d < n; ++d) {
+          std::fill(seen.begin(), seen.end(), 0);
+          for (int f : T.chan(a, b))
+            for (int g : T.chan(f, c))
+              for (int e : T.chan(g, d)) seen[static_cast<size_t>(e)] = 1;
+          for (int e = 0; e < n; ++e)
+            if (seen[static_cast<size_t>(e)]) out.push_back({a, b, c, d, e});
+        }
   return out;
 }
 
@@ -774,6 +777,8 @@ CheckReport check_model(const Model& M, const CheckOptions& opt) {
     return f;
   };
   if (n == 0) throw InputError("the model has no labels");
+  if (n > kMaxCheckLabels)
+    throw ResourceError(fmt::format("model check supports at most {} labels (the model has {})", kMaxCheckLabels, n));
 
   // --- fusion rules
   {
