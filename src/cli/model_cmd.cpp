@@ -3,6 +3,7 @@
 #include <unistd.h>
 
 #include <chrono>
+#include <cmath>
 #include <nlohmann/json.hpp>
 
 #include "commands.hpp"
@@ -66,6 +67,7 @@ int run_check(const std::string& path, bool as_json, int threads) {
     }
     j["failures"] = fl;
     j["exact"] = true;
+    j["seconds"] = std::round(rep.seconds * 1000.0) / 1000.0;
     fmt::print("{}\n", j.dump());
   } else {
     fmt::print("model {} ({}): {}\n", m.name.empty() ? path : m.name, path,
@@ -82,6 +84,7 @@ int run_check(const std::string& path, bool as_json, int threads) {
       if (!f.residual.empty())
         fmt::print("  residual = {}\n  residual lies in {}\n", f.residual, f.residual_ball);
     }
+    fmt::print("  ({:.2f} s)\n", rep.seconds);
     long listed = static_cast<long>(rep.failures.size()), total = 0;
     for (const CheckCount& c : rep.checks) total += c.failed;
     if (total > listed) fmt::print("  ({} failures in all; the first ones of each check are listed)\n", total);
