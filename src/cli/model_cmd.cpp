@@ -24,10 +24,12 @@ struct Progress {
   bool tty = isatty(2) != 0;
   std::chrono::steady_clock::time_point start = std::chrono::steady_clock::now();
   bool shown = false;
+  double last = 0;
   void operator()(const std::string& stage, double frac) {
     if (!tty) return;
     double el = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    if (el < 1.0) return;
+    if (el < 1.0 || el - last < 0.25) return;
+    last = el;
     fmt::print(stderr, "\r  checking {:<16} {:5.1f}%  ({:.0f} s)", stage, 100.0 * frac, el);
     std::fflush(stderr);
     shown = true;
