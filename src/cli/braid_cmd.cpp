@@ -140,15 +140,19 @@ void add_braid_commands(CLI::App& app, Action& action) {
     auto* c = braid->add_subcommand("check", "braid relations, eigenvalues, Hecke relation, full twist, image algebra");
     auto o = std::make_shared<SpaceOpts>();
     auto maxdim = std::make_shared<size_t>(64);
+    auto algdim = std::make_shared<size_t>(13);
     add_space_options(c, *o);
     c->add_option("--max-dimension", *maxdim, "refuse larger spaces (exact dense checks)");
-    c->callback([o, maxdim, &action] {
-      action = [o, maxdim] {
+    c->add_option("--algebra-limit", *algdim,
+                  "compute the image-algebra dimension for spaces up to this dimension (cost ~ dim^6)");
+    c->callback([o, maxdim, algdim, &action] {
+      action = [o, maxdim, algdim] {
         Model m = load_model(o->model);
         std::vector<int> an = parse_anyons(m, o->anyons);
         BraidGenerators g(m, parse_label(m, o->total, "total charge"));
         BraidCheckOptions opt;
         opt.max_dimension = *maxdim;
+        opt.max_algebra_dimension = *algdim;
         BraidReport r = check_braid_representation(g, an, opt);
         if (o->json) {
           ojson rel = ojson::array();
@@ -192,6 +196,8 @@ void add_braid_commands(CLI::App& app, Action& action) {
           if (r.twist_checked)
             fmt::print("full twist (s1...s{})^{} = theta_c/theta_a^n = {}: {}\n", an.size() - 1, an.size(),
                        r.twist_expected->str(), r.twist_holds ? "holds" : "FAILS");
+          if (r.algebra_dimension < 0 && r.twist_checked)
+            fmt::print("image algebra: not computed (dimension {} > --algebra-limit {})\n", r.dimension, *algdim);
           if (r.algebra_dimension >= 0)
             fmt::print("image algebra: dimension {} of {} ({})\n", r.algebra_dimension, r.dimension * r.dimension,
                        static_cast<size_t>(r.algebra_dimension) == r.dimension * r.dimension

@@ -40,7 +40,7 @@ struct BraidReport {
 
 struct BraidCheckOptions {
   size_t max_dimension = 64;        ///< larger spaces: ResourceError
-  size_t max_algebra_dimension = 9; ///< image-algebra dimension computed for spaces up to this dimension
+  size_t max_algebra_dimension = 13; ///< image-algebra dimension computed for spaces up to this dimension
 };
 
 BraidReport check_braid_representation(BraidGenerators& gens, const std::vector<int>& anyons,
