@@ -4,6 +4,7 @@
 
 #include <cmath>
 #include <exception>
+#include <map>
 #include <memory>
 #include <thread>
 #include <unordered_map>
@@ -141,41 +142,57 @@ void product_tree(acb_mat_t out, const std::vector<const Matrix*>& letters, cons
     acb_mat_mul(out, p->m, s.m, prec);
 }
 
-// Upper bound for ||G||_2 (true G inside the ball): sqrt of the max row sum of |G^* G|, and the Frobenius norm.
-void norm2_bound(mag_t out, const acb_mat_t g, long prec) {
-  long r = acb_mat_nrows(g), c = acb_mat_ncols(g);
-  acb_mat_t gh, h;
-  acb_mat_init(gh, c, r);
-  acb_mat_init(h, c, c);
-  acb_mat_conjugate_transpose(gh, g);
-  acb_mat_mul(h, gh, g, prec);
-  mag_t row, t, best;
-  mag_init(row);
-  mag_init(t);
+// Upper bound for ||G||_2 (true G inside the ball): sqrt of the max row sum of |G^* G| (an induced norm bounds
+// the largest eigenvalue of G^* G), computed sparsely from the nonzero entries; and the Frobenius norm; the
+// smaller of the two.
+void norm2_bound(mag_t out, const acb_mat_t g, const std::vector<std::pair<long, long>>& nz, long prec) {
+  long c = acb_mat_ncols(g);
+  // Nonzeros grouped by row: H(a, b) = sum_i conj(G(i, a)) G(i, b).
+  std::map<long, std::vector<long>> by_row;
+  for (auto [i, j] : nz) by_row[i].push_back(j);
+  std::map<std::pair<long, long>, std::unique_ptr<acb_struct, void (*)(acb_struct*)>> h;
+  acb_t t;
+  acb_init(t);
+  auto make = [] {
+    auto* p = new acb_struct;
+    acb_init(p);
+    return std::unique_ptr<acb_struct, void (*)(acb_struct*)>(p, [](acb_struct* q) {
+      acb_clear(q);
+      delete q;
+    });
+  };
+  for (const auto& [i, cols] : by_row)
+    for (long a : cols)
+      for (long b : cols) {
+        acb_conj(t, acb_mat_entry(g, i, a));
+        acb_mul(t, t, acb_mat_entry(g, i, b), prec);
+        auto it = h.find({a, b});
+        if (it == h.end()) it = h.emplace(std::make_pair(a, b), make()).first;
+        acb_add(it->second.get(), it->second.get(), t, prec);
+      }
+  std::vector<mag_struct> row(static_cast<size_t>(c));
+  for (auto& r : row) mag_init(&r);
+  mag_t m, best, fro;
+  mag_init(m);
   mag_init(best);
-  for (long i = 0; i < c; ++i) {
-    mag_zero(row);
-    for (long j = 0; j < c; ++j) {
-      acb_get_mag(t, acb_mat_entry(h, i, j));
-      mag_add(row, row, t);
-    }
-    mag_max(best, best, row);
+  mag_init(fro);
+  for (const auto& [ab, v] : h) {
+    acb_get_mag(m, v.get());
+    mag_add(&row[static_cast<size_t>(ab.first)], &row[static_cast<size_t>(ab.first)], m);
   }
+  for (auto& r : row) mag_max(best, best, &r);
   mag_sqrt(best, best);
-  // Frobenius bound.
-  mag_zero(row);
-  for (long i = 0; i < r; ++i)
-    for (long j = 0; j < c; ++j) {
-      acb_get_mag(t, acb_mat_entry(g, i, j));
-      mag_addmul(row, t, t);
-    }
-  mag_sqrt(row, row);
-  mag_min(out, best, row);
+  for (auto [i, j] : nz) {
+    acb_get_mag(m, acb_mat_entry(g, i, j));
+    mag_addmul(fro, m, m);
+  }
+  mag_sqrt(fro, fro);
+  mag_min(out, best, fro);
+  for (auto& r : row) mag_clear(&r);
+  mag_clear(fro);
   mag_clear(best);
-  mag_clear(t);
-  mag_clear(row);
-  acb_mat_clear(h);
-  acb_mat_clear(gh);
+  mag_clear(m);
+  acb_clear(t);
 }
 
 // Column propagation with exact midpoints and one rigorous 2-norm error bound per column.
@@ -214,16 +231,42 @@ void product_columns(acb_mat_t out, const std::vector<const Matrix*>& letters, c
         for (long j = 0; j < g.cols(); ++j)
           if (!acb_is_zero(acb_mat_entry(g.m, i, j))) nz[l].emplace_back(i, j);
       mag_init(&nu[l]);
-      norm2_bound(&nu[l], g.m, prec);
+      norm2_bound(&nu[l], g.m, nz[l], prec);
     }
+    // Row-wise nonzeros: (row, first index, count) into cols[l] / vals[l] (shallow copies of the ball entries,
+    // read only by acb_dot).
+    struct RowSpan {
+      long i;
+      size_t first, count;
+    };
+    std::vector<std::vector<RowSpan>> rows(b.mats.size());
+    std::vector<std::vector<long>> cols(b.mats.size());
+    std::vector<std::vector<acb_struct>> vals(b.mats.size());
+    for (size_t l = 0; l < b.mats.size(); ++l)
+      for (auto [i, c] : nz[l]) {
+        if (rows[l].empty() || rows[l].back().i != i) rows[l].push_back({i, cols[l].size(), 0});
+        ++rows[l].back().count;
+        cols[l].push_back(c);
+        vals[l].push_back(*acb_mat_entry(b.mats[l]->m, i, c));
+      }
+    std::vector<acb_struct> ys;
+    std::unordered_map<long, std::unique_ptr<BallMat>> spare;  // next buffers by row count
     for (size_t l : b.seq) {
       const BallMat& g = *b.mats[l];
-      auto next = std::make_unique<BallMat>(g.rows(), k);
-      for (auto [i, c] : nz[l])
-        for (long j = 0; j < k; ++j)
-          acb_addmul(acb_mat_entry(next->m, i, j), acb_mat_entry(g.m, i, c), acb_mat_entry(acc->m, c, j), prec);
+      auto& slot = spare[g.rows()];
+      std::unique_ptr<BallMat> next = slot ? std::move(slot) : std::make_unique<BallMat>(g.rows(), k);
+      acb_mat_zero(next->m);
+      for (const RowSpan& r : rows[l]) {
+        ys.resize(r.count);
+        for (long j = 0; j < k; ++j) {
+          for (size_t q = 0; q < r.count; ++q) ys[q] = *acb_mat_entry(acc->m, cols[l][r.first + q], j);
+          acb_dot(acb_mat_entry(next->m, r.i, j), nullptr, 0, vals[l].data() + r.first, 1, ys.data(), 1,
+                  static_cast<slong>(r.count), prec);
+        }
+      }
       for (auto& e : err) mag_mul(&e, &e, &nu[l]);
       absorb(*next);
+      spare[acc->rows()] = std::move(acc);
       acc = std::move(next);
     }
     for (auto& v : nu) mag_clear(&v);
