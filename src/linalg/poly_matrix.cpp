@@ -132,6 +132,12 @@ void PolyMatrix::clear() {
   fmpz_one(den_);
 }
 
+void PolyMatrix::divide(const fmpz* d) {
+  if (fmpz_sgn(d) <= 0) throw MathError("PolyMatrix::divide needs a positive integer");
+  fmpz_mul(den_, den_, d);
+  normalise();
+}
+
 long PolyMatrix::max_bits() const {
   long b = 0;
   for (auto* p : parts_) b = std::max(b, std::labs(fmpz_poly_mat_max_bits(p)));

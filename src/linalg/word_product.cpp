@@ -11,6 +11,8 @@
 
 #include "zetabraid/error.hpp"
 #include "zetabraid/linalg/poly_matrix.hpp"
+#include <flint/fmpz_vec.h>
+
 #include "sparse_kernel.hpp"
 
 namespace zb {
@@ -360,18 +362,56 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
                          fmpz_poly_get_coeff_ptr(e, t));
             }
       }
-      for (const Token& t : c.tokens) {
-        const detail::SparseLetter& g = kern[t.leaf];
-        if (is_small && !detail::fits_small(g, small)) {
+      // Phase 1: int64 columns while the bound allows. Phase 2: fmpz columns, letter by letter. Phase 3 (once
+      // the columns' coefficients are long enough that dim int64 operations are cheaper than k big-number ones):
+      // int64 block products of the letters (dim x dim, sparse letters) applied to the fmpz columns.
+      const size_t total = c.tokens.size();
+      size_t x = 0;
+      while (x < total && is_small) {
+        const detail::SparseLetter& g = kern[c.tokens[x].leaf];
+        if (!detail::fits_small(g, small)) {
           big = detail::BigBlock(small);
           is_small = false;
+          break;
         }
-        if (is_small)
-          small = detail::apply(g, small);
-        else
-          big = detail::apply(g, big);
+        small = detail::apply(g, small);
+        ++x;
       }
-      return (is_small ? small.to_poly(ctx, s.denominator()) : big.to_poly(ctx, s.denominator())).to_matrix(ctx);
+      if (is_small) return small.to_poly(ctx, s.denominator()).to_matrix(ctx);
+      bool blocks = false;
+      while (x < total) {
+        if (opt.column_blocks && x % 32 == 0) {
+          long limbs = std::labs(_fmpz_vec_max_bits(big.a.data(), static_cast<slong>(big.a.size()))) / 64;
+          if (opt.column_block_limbs >= 0 ? limbs >= opt.column_block_limbs
+                                          : static_cast<long>(dim) < static_cast<long>(k) * (2 + limbs))
+            blocks = true;
+        }
+        if (blocks) break;
+        big = detail::apply(kern[c.tokens[x].leaf], big);
+        ++x;
+      }
+      if (x == total) return big.to_poly(ctx, s.denominator()).to_matrix(ctx);
+      PolyMatrix acc = big.to_poly(ctx);
+      while (x < total) {
+        const detail::SparseLetter& g0 = kern[c.tokens[x].leaf];
+        detail::SmallBlock blk = detail::SmallBlock::identity(g0.cols(), n, masks);
+        size_t used = 0;
+        while (x < total) {
+          const detail::SparseLetter& g = kern[c.tokens[x].leaf];
+          if (!detail::fits_small(g, blk)) break;
+          blk = detail::apply(g, blk);
+          ++x;
+          ++used;
+        }
+        if (used == 0) {
+          acc = PolyMatrix::mul(c.leaves[c.tokens[x].leaf], acc, ctx);
+          ++x;
+        } else {
+          acc = PolyMatrix::mul(blk.to_poly(ctx), acc, ctx);
+        }
+      }
+      acc.divide(s.denominator());
+      return acc.to_matrix(ctx);
     }
     std::vector<PolyMatrix::Nonzeros> nz;
     for (const auto& l : c.leaves) nz.push_back(l.nonzeros());

@@ -386,6 +386,12 @@ TEST_CASE("int64 block kernel equals the fmpz path and the left-to-right product
       Matrix cn = word_product_naive(bw, start);
       CHECK(word_product_columns(bw, start) == cn);
       CHECK(word_product_columns(bw, start, off) == cn);
+      ProductOptions blocks;
+      blocks.column_block_limbs = 0;  // int64 block products from the first fmpz step on
+      CHECK(word_product_columns(bw, start, blocks) == cn);
+      ProductOptions letters;
+      letters.column_blocks = false;
+      CHECK(word_product_columns(bw, start, letters) == cn);
     }
   }
 }

@@ -74,6 +74,8 @@ class PolyMatrix {
   RadicalMask mask(size_t i) const { return masks_[i]; }
   const fmpz_poly_mat_struct* part(size_t i) const { return parts_[i]; }
   const fmpz* denominator() const { return den_; }
+  /// Divides the value by d > 0 (exact: multiplies the denominator, then cancels common content).
+  void divide(const fmpz* d);
   /// Largest coefficient size in bits (over all masks and entries).
   long max_bits() const;
 

@@ -31,6 +31,11 @@ struct ProductOptions {
   /// Use the int64 sparse-letter kernel (integral letters, <= 4 radicands) for blocks of letters while a
   /// rigorous coefficient bound stays below 2^62 (off only for tests and measurements).
   bool small_kernel = true;
+  /// word_product_columns: once coefficients are long, apply int64 block products of letters instead of single
+  /// letters (off only for tests and measurements).
+  bool column_blocks = true;
+  /// Switch to blocks at this many limbs per coefficient (-1: automatic, when dimension < columns * (2 + limbs)).
+  long column_block_limbs = -1;
 };
 
 /// Exact product L_n ... L_1 (application order). Shapes must compose.
