@@ -287,8 +287,32 @@ BallMethod pick(const std::vector<const Matrix*>& letters, const Matrix& start, 
   if (m != BallMethod::kAuto) return m;
   size_t dim = start.rows();
   for (const Matrix* l : letters) dim = std::max(dim, l->rows());
-  // Tree products cost dim^3 per letter, columns cost nnz * cols per letter (and keep more bits).
-  return dim <= 8 ? BallMethod::kTree : BallMethod::kColumns;
+  // Columns cost nnz * cols per letter and lose ~log2(length) bits when every letter has 2-norm <= 1 (unitary
+  // letters); the tree costs dim^3 per letter and copes better with letters of norm > 1. Big spaces: columns.
+  if (dim > 8) return BallMethod::kColumns;
+  std::unordered_map<const Matrix*, bool> seen;
+  mag_t nu, one;
+  mag_init(nu);
+  mag_init(one);
+  mag_set_ui_2exp_si(one, 1025, -10);  // 1 + 2^-10
+  bool unitary = true;
+  acb_mat_t g;
+  for (const Matrix* l : letters) {
+    if (!unitary) break;
+    if (!seen.emplace(l, true).second) continue;
+    acb_mat_init(g, static_cast<long>(l->rows()), static_cast<long>(l->cols()));
+    l->ball(g, 64);
+    std::vector<std::pair<long, long>> nz;
+    for (long i = 0; i < acb_mat_nrows(g); ++i)
+      for (long j = 0; j < acb_mat_ncols(g); ++j)
+        if (!acb_is_zero(acb_mat_entry(g, i, j))) nz.emplace_back(i, j);
+    norm2_bound(nu, g, nz, 64);
+    unitary = mag_cmp(nu, one) <= 0;
+    acb_mat_clear(g);
+  }
+  mag_clear(one);
+  mag_clear(nu);
+  return unitary ? BallMethod::kColumns : BallMethod::kTree;
 }
 
 }  // namespace

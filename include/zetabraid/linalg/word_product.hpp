@@ -51,11 +51,14 @@ Matrix word_product_naive(const std::vector<const Matrix*>& letters, const Matri
 
 /// Ball enclosure of L_n ... L_1 * start at working precision prec (start may be an identity).
 /// `out` is initialised by the caller with shape (rows of L_n) x (cols of start).
-/// Every entry of `out` contains the exact entry (rigorous). Small dimensions use a balanced product tree of
-/// acb_mat products (radius growth ~ polynomial in the word length instead of exponential left to right); big
-/// dimensions propagate the columns one letter at a time as exact midpoints plus one rigorous 2-norm error
-/// bound per column: e' = ||L||_2 e + ||rad(L * mid)||_2 with ||L||_2 bounded rigorously from the ball of
-/// L^* L (so for unitary letters the error grows only linearly in the word length).
+/// Every entry of `out` contains the exact entry (rigorous). Two methods (BallMethod):
+///  * tree: a balanced product tree of acb_mat products (radius growth ~ polynomial in the word length instead of
+///    exponential left to right, since every level multiplies balls of similar size);
+///  * columns: the columns are propagated one letter at a time as exact midpoints plus one rigorous 2-norm error
+///    bound per column, e' = nu(L) e + ||rad(L * mid)||_2, with nu(L) >= ||L||_2 bounded rigorously from the ball
+///    of L^* L (sqrt of its max absolute row sum) or the Frobenius norm. For unitary letters nu ~ 1 + 2^-prec, so
+///    the bound grows only linearly in the word length (~log2(length) bits lost); cost nnz(L) * columns per letter.
+/// kAuto (the default here): columns when the dimension exceeds 8 or every letter has nu <= 1 + 2^-10, else tree.
 void word_product_ball(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec);
 
 enum class BallMethod { kAuto, kTree, kColumns };
