@@ -274,10 +274,10 @@ void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, 
 
 }  // namespace
 
-Matrix word_product(const std::vector<const Matrix*>& letters, const ProductOptions& opt) {
-  if (letters.empty()) throw MathError("empty word: no matrix shape to return");
-  check_shapes(letters, nullptr);
-  PolyContext ctx(letters.front()->field());
+namespace {
+
+// The exact product as a PolyMatrix (letters non-empty, shapes checked).
+PolyMatrix exact_product(const std::vector<const Matrix*>& letters, const PolyContext& ctx, const ProductOptions& opt) {
   Converted c = convert(letters, ctx, opt.share_repeats);
   // Words with long runs or a period go through the tree with powers and shared subtrees; others are first cut
   // into int64 blocks (sparse letters, exact coefficient bounds), then the blocks go through the tree.
@@ -287,7 +287,7 @@ Matrix word_product(const std::vector<const Matrix*>& letters, const ProductOpti
   if (!repetitive && opt.small_kernel) kern = kernels(c.leaves, ctx);
   if (kern.empty()) {
     ExactTree tree(ctx, c.leaves, opt);
-    return tree.product(c.tokens).to_matrix(ctx);
+    return tree.product(c.tokens);
   }
   std::vector<size_t> seq;
   for (const Token& t : c.tokens)
@@ -324,7 +324,16 @@ Matrix word_product(const std::vector<const Matrix*>& letters, const ProductOpti
   ProductOptions o = opt;
   o.share_repeats = false;
   ExactTree tree(ctx, all, o);
-  return tree.product(toks).to_matrix(ctx);
+  return tree.product(toks);
+}
+
+}  // namespace
+
+Matrix word_product(const std::vector<const Matrix*>& letters, const ProductOptions& opt) {
+  if (letters.empty()) throw MathError("empty word: no matrix shape to return");
+  check_shapes(letters, nullptr);
+  PolyContext ctx(letters.front()->field());
+  return exact_product(letters, ctx, opt).to_matrix(ctx);
 }
 
 Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start) {
@@ -419,9 +428,7 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
     for (const Token& t : c.tokens) acc = PolyMatrix::mul_sparse(c.leaves[t.leaf], nz[t.leaf], acc, ctx);
     return acc.to_matrix(ctx);
   }
-  Converted c = convert(letters, ctx, opt.share_repeats);
-  ExactTree tree(ctx, c.leaves, opt);
-  PolyMatrix p = tree.product(c.tokens);
+  PolyMatrix p = exact_product(letters, ctx, opt);
   if (start.is_identity()) return p.to_matrix(ctx);
   return PolyMatrix::mul(p, s, ctx).to_matrix(ctx);
 }
