@@ -479,23 +479,46 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
     acb_mat_t acc, tmp;
     acb_mat_init(acc, static_cast<slong>(dim), static_cast<slong>(k));
     x.keep.ball(acc, p);
-    std::map<const Matrix*, std::unique_ptr<acb_mat_struct, void (*)(acb_mat_struct*)>> balls;
+    // letters as sparse ball matrices (entries (row, col, value)), applied column by column
+    struct SparseBall {
+      size_t rows = 0;
+      std::vector<std::pair<size_t, size_t>> idx;
+      acb_ptr vals = nullptr;
+      slong n = 0;
+      ~SparseBall() {
+        if (vals) _acb_vec_clear(vals, n);
+      }
+    };
+    std::map<const Matrix*, std::unique_ptr<SparseBall>> balls;
+    acb_t prod;
+    acb_init(prod);
     for (const Matrix* mm : seq) {
       auto it = balls.find(mm);
       if (it == balls.end()) {
-        auto* g = new acb_mat_struct;
-        acb_mat_init(g, static_cast<slong>(mm->rows()), static_cast<slong>(mm->cols()));
-        mm->ball(g, p);
-        it = balls.emplace(mm, std::unique_ptr<acb_mat_struct, void (*)(acb_mat_struct*)>(g, [](acb_mat_struct* q) {
-                             acb_mat_clear(q);
-                             delete q;
-                           })).first;
+        auto sb = std::make_unique<SparseBall>();
+        sb->rows = mm->rows();
+        for (size_t i = 0; i < mm->rows(); ++i)
+          for (size_t j = 0; j < mm->cols(); ++j)
+            if (!(*mm)(i, j).is_zero()) sb->idx.emplace_back(i, j);
+        sb->n = static_cast<slong>(sb->idx.size());
+        sb->vals = _acb_vec_init(sb->n);
+        for (size_t e = 0; e < sb->idx.size(); ++e)
+          (*mm)(sb->idx[e].first, sb->idx[e].second).ball(sb->vals + e, p);
+        it = balls.emplace(mm, std::move(sb)).first;
       }
-      acb_mat_init(tmp, static_cast<slong>(mm->rows()), static_cast<slong>(k));
-      acb_mat_mul(tmp, it->second.get(), acc, p);
+      const SparseBall& sb = *it->second;
+      acb_mat_init(tmp, static_cast<slong>(sb.rows), static_cast<slong>(k));
+      for (size_t e = 0; e < sb.idx.size(); ++e) {
+        auto [i, j] = sb.idx[e];
+        for (size_t c = 0; c < k; ++c) {
+          acb_mul(prod, sb.vals + e, acb_mat_entry(acc, j, c), p);
+          acb_add(acb_mat_entry(tmp, i, c), acb_mat_entry(tmp, i, c), prod, p);
+        }
+      }
       acb_mat_swap(tmp, acc);
       acb_mat_clear(tmp);
     }
+    acb_clear(prod);
     if (!coord_rows.empty() || coordinate) {
       // the kept basis is a set of tree basis vectors: leakage = sum of |W_rj|^2 over rows r outside it
       arb_zero(leak);
