@@ -357,8 +357,8 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
     arb_get_mag(r, leak);
     long rad_bits = mag_is_zero(arb_radref(leak)) ? prec : -static_cast<long>(mag_get_d_log2_approx(arb_radref(leak)));
     mag_clear(r);
-    (void)acc;
-    bool decided = arb_is_positive(leak) || rad_bits >= opt.target_bits;
+    // done when the enclosure is tight, or proves leaking with at least 32 correct bits
+    bool decided = rad_bits >= opt.target_bits || (arb_is_positive(leak) && acc >= 32);
     if (opt.precision > 0 || decided || prec >= opt.max_precision) {
       res.accuracy_bits = rad_bits;
       break;

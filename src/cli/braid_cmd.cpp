@@ -108,6 +108,47 @@ void add_braid_commands(CLI::App& app, Action& action) {
     });
   }
   {
+    auto* c = braid->add_subcommand("subspace", "the kept subspace of a charge spec (--keep) as exact basis vectors");
+    auto o = std::make_shared<SpaceOpts>();
+    auto keep = std::make_shared<std::string>();
+    add_space_options(c, *o);
+    c->add_option("--keep", *keep, "charges of consecutive groups, e.g. \"1-3:t,4-6:t\"")->required();
+    c->callback([o, keep, &action] {
+      action = [o, keep] {
+        Model m = load_model(o->model);
+        FusionSpace sp(m, parse_anyons(m, o->anyons), parse_label(m, o->total, "total charge"));
+        sp.require_nonzero();
+        auto groups = parse_keep(m, *keep, sp.anyon_count());
+        Subspace s = subspace_from_groups(sp, groups);
+        Matrix cols = s.basis.transpose();
+        if (o->json) {
+          fmt::print("{}\n", ojson{{"dimension", sp.dimension()},
+                                   {"kept_dimension", s.kept()},
+                                   {"coordinate", s.coordinate},
+                                   {"basis", matrix_json(cols)}}
+                                 .dump());
+        } else {
+          fmt::print("kept subspace {} of V({}; {}): dimension {} of {}{}\n", keep_canonical(m, groups),
+                     label_names(m, sp.anyons()), o->total, s.kept(), sp.dimension(),
+                     s.coordinate ? " (spanned by tree basis vectors)" : " (columns of the charge projector)");
+          if (s.coordinate)
+            for (size_t c2 : s.coordinates) fmt::print("  {:4}  {}\n", c2 + 1, sp.label(c2));
+          else
+            fmt::print("basis vectors (one per line, usable with certify --keep-file):\n{}",
+                       [&] {
+                         std::string t;
+                         for (size_t j = 0; j < cols.rows(); ++j) {
+                           for (size_t i = 0; i < cols.cols(); ++i) t += (i ? ", " : "") + cols(j, i).str();
+                           t += "\n";
+                         }
+                         return t;
+                       }());
+        }
+        return 0;
+      };
+    });
+  }
+  {
     auto* c = braid->add_subcommand("generators", "exact matrices of the generators s_i (and inverses)");
     auto o = std::make_shared<SpaceOpts>();
     auto which = std::make_shared<std::vector<int>>();

@@ -40,6 +40,12 @@ TEST_CASE("zetabraid braid basis / check / generators / invariant") {
   r = zbtest::run(zbtest::cli() + " braid invariant --model " + fib() + " --strands 't t' --word 's1' --json");
   REQUIRE(r.status == 0);
   CHECK(nlohmann::json::parse(r.out)["invariant"]["exact"] == "1");  // unknot (Markov stabilisation)
+  r = zbtest::run(zbtest::cli() + " braid subspace --model " + fib() +
+                 " --anyons 't t t t t t' --total 1 --keep '1-3:t,4-6:t' --json");
+  REQUIRE(r.status == 0);
+  j = nlohmann::json::parse(r.out);
+  CHECK(j["kept_dimension"] == 4);  // the two-qubit space (common practice)
+  CHECK(j["coordinate"] == true);
   // input errors: exit 2 with a message
   r = zbtest::run(zbtest::cli() + " braid basis --model " + fib() + " --anyons 't x' --total 1", true);
   CHECK(r.status == 2);
