@@ -47,6 +47,17 @@ TEST_CASE("Jones polynomials of the trefoil and the figure-eight knot from SU(2)
     CHECK(link_invariant(m, {h, h, h}, parse_word("s1^3 s2^-1")).invariant == v("T + T^3 - T^4"));
     CHECK(link_invariant(m, {h, h, h}, parse_word("s2 s1 s2^-1 s1 s2^-1 s2^-1")).invariant ==
           v("T^2 - T + 1 - T^-1 + T^-2"));
+    // positive Hopf link (closure of s1^2; Jones 1985, from memory): V = -t^(1/2) - t^(5/2). Our invariant
+    // corrects only each component's self-framing, Jones' normalisation the total writhe w: for spin-1/2
+    // strands V = (-1)^(c-1) t^(3 (w - sum_K w_K)/4) I, here c = 2, w = 2, w_K = 0: V = -t^(3/2) I.
+    {
+      std::string half = fmt::format("exp(-pi*i/{})", k + 2);  // t^(1/2)
+      Scalar th = parse_expression(half, m.field);
+      LinkInvariant hopf = link_invariant(m, {h, h}, parse_word("s1^2"));
+      CHECK(hopf.components == 2);
+      CHECK(-th.pow(3) * hopf.invariant == -th - th.pow(5));
+      if (k >= 3) CHECK_FALSE(hopf.invariant == -th - th.pow(5));  // the normalisations differ (both 0 at k = 2)
+    }
     // unknot
     CHECK(link_invariant(m, {h}, parse_word("")).invariant.is_one());
     CHECK(link_invariant(m, {h, h}, parse_word("s1")).invariant.is_one());
