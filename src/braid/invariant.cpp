@@ -63,7 +63,8 @@ LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands
     if (strands[static_cast<size_t>(s)] != strands[static_cast<size_t>(next[static_cast<size_t>(s)])])
       throw InputError("the braid closure joins strands of different anyon types: the word must return every label "
                        "to its position");
-  LinkInvariant out{Scalar(model.field), Scalar(model.field), nc, std::vector<long>(static_cast<size_t>(nc), 0)};
+  LinkInvariant out{Scalar(model.field), Scalar(model.field), Scalar(model.field), nc,
+                    std::vector<long>(static_cast<size_t>(nc), 0)};
   for (size_t k = 0; k < w.size(); ++k) {
     auto [x, y] = crossings[k];
     if (comp[static_cast<size_t>(x)] == comp[static_cast<size_t>(y)])
@@ -92,6 +93,11 @@ LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands
     corr *= twist(model, strands[static_cast<size_t>(s)]).pow(-out.self_writhe[static_cast<size_t>(k)]);
   }
   out.invariant = corr * out.quantum_trace / quantum_dimension(model, strands[0]);
+  bool uniform = true;
+  for (int a : strands) uniform = uniform && a == strands[0];
+  out.writhe_normalised = uniform ? twist(model, strands[0]).pow(-w.writhe()) * out.quantum_trace /
+                                        quantum_dimension(model, strands[0])
+                                  : out.invariant;
   return out;
 }
 

@@ -272,7 +272,8 @@ void add_braid_commands(CLI::App& app, Action& action) {
           fmt::print("{}\n", ojson{{"components", li.components},
                                    {"writhe", w.writhe()},
                                    {"quantum_trace", value_json(li.quantum_trace)},
-                                   {"invariant", value_json(li.invariant)}}
+                                   {"invariant", value_json(li.invariant)},
+                                   {"writhe_normalised", value_json(li.writhe_normalised)}}
                                  .dump());
         } else {
           fmt::print("closure: {} component(s), writhe {}\n", li.components, w.writhe());
@@ -280,6 +281,9 @@ void add_braid_commands(CLI::App& app, Action& action) {
                      ball_of(li.quantum_trace));
           fmt::print("invariant (framing-corrected, unknot = 1): {}\n  enclosure: {}\n", li.invariant.str(),
                      ball_of(li.invariant));
+          if (li.components > 1)
+            fmt::print("total-writhe normalisation theta^-w Q/d: {}\n  enclosure: {}\n", li.writhe_normalised.str(),
+                       ball_of(li.writhe_normalised));
         }
         return 0;
       };

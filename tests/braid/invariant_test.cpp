@@ -56,6 +56,7 @@ TEST_CASE("Jones polynomials of the trefoil and the figure-eight knot from SU(2)
       LinkInvariant hopf = link_invariant(m, {h, h}, parse_word("s1^2"));
       CHECK(hopf.components == 2);
       CHECK(-th.pow(3) * hopf.invariant == -th - th.pow(5));
+      CHECK(-hopf.writhe_normalised == -th - th.pow(5));  // J = (-1)^(c-1) V
       if (k >= 3) CHECK_FALSE(hopf.invariant == -th - th.pow(5));  // the normalisations differ (both 0 at k = 2)
     }
     // unknot
