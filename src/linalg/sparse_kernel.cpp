@@ -82,7 +82,7 @@ std::int64_t SmallBlock::max_abs() const {
 
 SmallBlock SmallBlock::identity(long d, long n, long masks) {
   SmallBlock b{d, d, n, masks, std::vector<std::int64_t>(static_cast<size_t>(masks * d * d * n), 0)};
-  for (long i = 0; i < d; ++i) b.a[static_cast<size_t>((i * d + i) * n)] = 1;
+  for (long i = 0; i < d; ++i) b.a[static_cast<size_t>(i * n * d + i)] = 1;
   b.bound = 1;
   return b;
 }
@@ -98,7 +98,7 @@ bool SmallBlock::from_poly(SmallBlock* out, const PolyMatrix& p, long n, long ma
         for (long t = 0; t < fmpz_poly_length(e); ++t) {
           const fmpz* v = fmpz_poly_get_coeff_ptr(e, t);
           if (fmpz_bits(v) > 40) return false;
-          out->a[static_cast<size_t>(((u * p.rows() + i) * p.cols() + j) * n + t)] = fmpz_get_si(v);
+          out->a[static_cast<size_t>(((u * p.rows() + i) * n + t) * p.cols() + j)] = fmpz_get_si(v);
         }
       }
   }
@@ -112,6 +112,19 @@ bool fits_small(const SparseLetter& g, SmallBlock& x) {
   return x.bound * g.beta() < kLimit;
 }
 
+namespace {
+// The hot loop: dst rows += v * src rows over the entries of one multiplication matrix.
+void axpy_rows(std::int64_t* __restrict dst, const std::int64_t* __restrict src, const KernelEntry* e, size_t count,
+               long k) {
+  for (size_t q = 0; q < count; ++q) {
+    std::int64_t* d0 = dst + e[q].r * k;
+    const std::int64_t* s0 = src + e[q].t * k;
+    const std::int64_t v = e[q].v;
+    for (long j = 0; j < k; ++j) d0[j] += v * s0[j];
+  }
+}
+}  // namespace
+
 SmallBlock apply(const SparseLetter& g, const SmallBlock& x) {
   if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
   SmallBlock y{g.rows(), x.k, x.n, x.masks, std::vector<std::int64_t>(static_cast<size_t>(x.masks * g.rows() * x.k * x.n), 0)};
@@ -120,8 +133,7 @@ SmallBlock apply(const SparseLetter& g, const SmallBlock& x) {
   for (const auto& t : g.terms()) {
     std::int64_t* dst = y.a.data() + ((t.to * y.rows + t.i) * k) * n;
     const std::int64_t* src = x.a.data() + ((t.from * x.rows + t.c) * k) * n;
-    for (const KernelEntry& e : t.m)
-      for (long j = 0; j < k; ++j) dst[j * n + e.r] += e.v * src[j * n + e.t];
+    axpy_rows(dst, src, t.m.data(), t.m.size(), k);
   }
   return y;
 }
@@ -162,16 +174,16 @@ BigBlock apply(const SparseLetter& g, const BigBlock& x) {
     const fmpz* src = x.a.data() + ((t.from * x.rows + t.c) * k) * n;
     for (const KernelEntry& e : t.m)
       for (long j = 0; j < k; ++j) {
-        const fmpz* s = src + j * n + e.t;
+        const fmpz* s = src + e.t * k + j;
         if (fmpz_is_zero(s)) continue;
         if (e.v == 1)
-          fmpz_add(dst + j * n + e.r, dst + j * n + e.r, s);
+          fmpz_add(dst + e.r * k + j, dst + e.r * k + j, s);
         else if (e.v == -1)
-          fmpz_sub(dst + j * n + e.r, dst + j * n + e.r, s);
+          fmpz_sub(dst + e.r * k + j, dst + e.r * k + j, s);
         else if (e.v > 0)  // not fmpz_addmul_si: in FLINT 2.9 it can leave a small value in non-canonical mpz form
-          fmpz_addmul_ui(dst + j * n + e.r, s, static_cast<ulong>(e.v));
+          fmpz_addmul_ui(dst + e.r * k + j, s, static_cast<ulong>(e.v));
         else
-          fmpz_submul_ui(dst + j * n + e.r, s, static_cast<ulong>(-e.v));
+          fmpz_submul_ui(dst + e.r * k + j, s, static_cast<ulong>(-e.v));
       }
   }
   return y;
@@ -187,7 +199,7 @@ PolyMatrix to_poly_impl(long rows, long k, long n, long masks, const fmpz* den, 
     for (long i = 0; i < rows; ++i)
       for (long j = 0; j < k; ++j) {
         fmpz_poly_struct* e = fmpz_poly_mat_entry(pm, i, j);
-        for (long t = n - 1; t >= 0; --t) get(e, ((u * rows + i) * k + j) * n + t, t);
+        for (long t = n - 1; t >= 0; --t) get(e, ((u * rows + i) * n + t) * k + j, t);
       }
     parts.emplace_back(static_cast<RadicalMask>(u), pm);
   }

@@ -3,7 +3,7 @@
 // A letter G (integral: PolyMatrix with den 1, radicand products integral) is precomputed as a list of terms
 // (row i, column c, mask S of G_ic's part, mask U of the operand): multiplying by G_ic,S * sqrt(d_S) maps the
 // operand part U to part S^U through the integer n x n matrix M = [x^t * G_ic,S * d_{S&U} mod Phi_N], stored by its
-// nonzero entries. An operand is a dense array coef[U][row][col][t] (all 2^m masks, t < phi(N)).
+// nonzero entries. An operand is a dense array coef[U][row][t][col] (all 2^m masks, t < phi(N)).
 //
 // Two coefficient types: int64 while a rigorous bound says every partial sum stays below 2^62 (checked before each
 // letter from the operand's actual largest coefficient and the letter's growth factor beta), fmpz otherwise.
@@ -45,7 +45,7 @@ class SparseLetter {
 /// Dense coefficient array for a rows x k matrix with 2^m masks.
 struct SmallBlock {
   long rows = 0, k = 0, n = 0, masks = 0;
-  std::vector<std::int64_t> a;  // [U][row][col][t]
+  std::vector<std::int64_t> a;  // [U][row][t][col]
   /// Upper bound on max|a| kept by apply (rescanned when it gets near the limit); -1 = unknown.
   double bound = -1;
   std::int64_t max_abs() const;

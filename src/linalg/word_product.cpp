@@ -367,7 +367,7 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
             for (long j = 0; j < s.cols(); ++j) {
               const fmpz_poly_struct* e = fmpz_poly_mat_entry(s.part(q), i, j);
               for (long t = 0; t < fmpz_poly_length(e); ++t)
-                fmpz_set(&big.a[static_cast<size_t>(((static_cast<long>(s.mask(q)) * s.rows() + i) * s.cols() + j) * n + t)],
+                fmpz_set(&big.a[static_cast<size_t>(((static_cast<long>(s.mask(q)) * s.rows() + i) * n + t) * s.cols() + j)],
                          fmpz_poly_get_coeff_ptr(e, t));
             }
       }
