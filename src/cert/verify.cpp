@@ -288,11 +288,26 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
   const json& jf = c["field"];
   expect_keys(jf, {"conductor", "radicands"}, "field");
   if (uint_of(jf["conductor"], "field.conductor") != f->conductor()) reject("field.conductor differs from the model");
-  if (!jf["radicands"].is_array() || jf["radicands"].size() != static_cast<size_t>(f->radicand_count()))
+  if (!jf["radicands"].is_array() || jf["radicands"].size() < static_cast<size_t>(f->radicand_count()))
     reject("field.radicands differ from the model");
-  for (int j = 0; j < f->radicand_count(); ++j)
+  const int model_radicands = f->radicand_count();
+  for (int j = 0; j < model_radicands; ++j)
     if (str_of(jf["radicands"][static_cast<size_t>(j)], "field.radicands") != f->radicand(j).str())
       reject("field.radicands differ from the model");
+  // further radicands come from explicit kept basis vectors: adjoin them in order, each must be new
+  for (size_t j = static_cast<size_t>(model_radicands); j < jf["radicands"].size(); ++j) {
+    std::string text = str_of(jf["radicands"][j], "field.radicands");
+    Scalar d = scalar_of(jf["radicands"][j], f, "field.radicands");
+    if (!d.in_base()) reject("field.radicands: a radicand must lie in Q(zeta_N)");
+    int before = f->radicand_count();
+    try {
+      (void)f->sqrt(d.to_base());
+    } catch (const std::exception& e) {
+      reject(fmt::format("field.radicands: sqrt({}) cannot be adjoined: {}", text, e.what()));
+    }
+    if (f->radicand_count() != before + 1 || f->radicand(before).str() != text)
+      reject(fmt::format("field.radicands: {} is not a new independent radicand", text));
+  }
   // space
   const json& js = c["space"];
   expect_keys(js, {"anyons", "total", "dimension", "basis"}, "space");
@@ -316,6 +331,8 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
   const json& jk = c["keep"];
   expect_keys(jk, {"kind", "spec", "dimension", "basis"}, "keep");
   std::string kind = str_of(jk["kind"], "keep.kind");
+  if (kind != "vectors" && jf["radicands"].size() != static_cast<size_t>(model_radicands))
+    reject("field.radicands: extra radicands are allowed only with explicit kept basis vectors");
   size_t k = uint_of(jk["dimension"], "keep.dimension");
   if (k == 0 || k > dim) reject("keep.dimension out of range");
   Matrix claimed_keep = matrix_of_rows(jk["basis"], k, dim, f, "keep.basis").transpose();
@@ -331,6 +348,12 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
     }
     if (s.basis != claimed_keep) reject("keep.basis is not the kept basis of keep.spec");
   } else if (kind == "vectors" || kind == "all") {
+    RadicalMask used = 0;
+    for (size_t i = 0; i < dim; ++i)
+      for (size_t j = 0; j < k; ++j)
+        for (const auto& [mask, c] : claimed_keep(i, j).terms()) used |= mask;
+    for (int r = model_radicands; r < f->radicand_count(); ++r)
+      if (!(used & (RadicalMask(1) << r))) reject("field.radicands: a radicand that no kept basis vector uses");
     if (!jk["spec"].is_null()) reject("keep.spec must be null for this kind");
     if (kind == "all" && !claimed_keep.is_identity()) reject("keep.basis of kind \"all\" must be the identity");
     if (claimed_keep.rank() != k) reject("keep.basis vectors are linearly dependent");

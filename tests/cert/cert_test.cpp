@@ -146,6 +146,20 @@ TEST_CASE("non-coordinate kept spaces: charge of anyons 2-3, and explicit basis 
   Subspace kv = subspace_from_text(sp, "# kept basis\n" + text, "vectors.txt");
   CertifyResult a = certify(g, four, k, parse_word("s1"), ex), b = certify(g, four, kv, parse_word("s1"), ex);
   CHECK(*a.leakage == *b.leakage);
+  // a kept vector outside the model's field (sqrt 2 for Fibonacci) adjoins a radicand; certificates carry it
+  if (std::filesystem::exists(fib_file())) {
+    std::string d = tmpdir();
+    spit(d + "/v2.txt", "1, sqrt(2), 0\n");
+    std::string cert = d + "/v2.json";
+    auto r = zbtest::run(zbtest::cli() + " certify --model " + fib_file() + " --anyons 't t t t' --total t --keep-file " +
+                         d + "/v2.txt --word s2 --out " + cert);
+    CHECK(r.status == 1);
+    CHECK(zbtest::run(zbtest::cli() + " verify " + cert).status == 0);
+    auto j = nlohmann::ordered_json::parse(slurp(cert));
+    j["field"]["radicands"].push_back("3");  // an extra radicand nobody needs is rejected
+    spit(cert, j.dump(2) + "\n");
+    CHECK(zbtest::run(zbtest::cli() + " verify " + cert).status == 1);
+  }
   CHECK_THROWS_WITH_AS(subspace_from_text(sp, "1, 0\n", "v.txt"), doctest::Contains("v.txt:1"), InputError);
   CHECK_THROWS_WITH_AS(subspace_from_text(sp, "1, 0, 0\n2, zeta +, 0", "v.txt"),
                        doctest::Contains("v.txt:2"), InputError);
