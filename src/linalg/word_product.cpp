@@ -167,6 +167,7 @@ class ExactTree {
           } catch (...) {
             err = std::current_exception();
           }
+          flint_cleanup();  // this thread's FLINT caches (values made here stay valid)
         });
         try {
           right = node(mid, hi, depth + 1);
@@ -308,7 +309,10 @@ PolyMatrix exact_product(const std::vector<const Matrix*>& letters, const PolyCo
         }
       };
       if (p + 1 < parts)
-        th.emplace_back(job);
+        th.emplace_back([job] {
+          job();
+          flint_cleanup();
+        });
       else
         job();
     }

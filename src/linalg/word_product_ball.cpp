@@ -103,6 +103,7 @@ class BallTree {
         } catch (...) {
           err = std::current_exception();
         }
+        flint_cleanup();  // this thread's FLINT/Arb caches
       });
       try {
         right = node(mid, hi, depth + 1);
