@@ -103,8 +103,7 @@ class WordParser {
   }
   void append_power(Word& out, const Word& base, long e, size_t at) {
     if (e == 0) return;
-    const Word& b = e > 0 ? base : base.inverse();
-    Word inv;
+    const Word b = e > 0 ? base : base.inverse();
     unsigned long m = static_cast<unsigned long>(e > 0 ? e : -e);
     if (b.size() && m > lim_.max_letters / b.size() + 1)
       throw ResourceError(fmt::format("column {}: braid word longer than {} letters", at + 1, lim_.max_letters));

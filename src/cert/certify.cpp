@@ -93,10 +93,7 @@ std::string decimal_round(const arf_t x, int digits, bool up) {
   fmpz_clear(hi);
   fmpq_clear(q);
   fmpq_clear(t);
-  std::string out = d.substr(0, 1);
-  if (d.size() > 1) out += "." + d.substr(1);
-  out += fmt::format("e{}", k);
-  return out;
+  return d.size() > 1 ? fmt::format("{}.{}e{}", d.substr(0, 1), d.substr(1), k) : fmt::format("{}e{}", d, k);
 }
 
 }  // namespace
@@ -352,11 +349,7 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
       word_product_ball(img, letters, keep.basis, prec);
     ball_leakage(leak, keep, img, prec);
     long acc = arb_rel_accuracy_bits(leak);
-    mag_t r;
-    mag_init(r);
-    arb_get_mag(r, leak);
     long rad_bits = mag_is_zero(arb_radref(leak)) ? prec : -static_cast<long>(mag_get_d_log2_approx(arb_radref(leak)));
-    mag_clear(r);
     // done when the enclosure is tight, or proves leaking with at least 32 correct bits
     bool decided = rad_bits >= opt.target_bits || (arb_is_positive(leak) && acc >= 32);
     if (opt.precision > 0 || decided || prec >= opt.max_precision) {
