@@ -9,7 +9,6 @@
 
 #include "zetabraid/error.hpp"
 #include "zetabraid/field/expression.hpp"
-#include "zetabraid/linalg/word_product.hpp"
 
 namespace zb {
 
@@ -115,10 +114,13 @@ Matrix inner_projector(const Model& model, int u, const std::vector<int>& block,
   for (size_t r = 0; r < w2.dimension(); ++r)
     if (w2.tree(r)[m - 1] == c) q(r, r) = Scalar(model.field, 1);
   std::vector<const Matrix*> back = gens.letters(end, beta.inverse());
-  std::vector<const Matrix*> all = fwd;
-  all.push_back(&q);
-  all.insert(all.end(), back.begin(), back.end());
-  return word_product_columns(all, Matrix::identity(model.field, w.dimension()));
+  // a product of at most 2m+1 small matrices, multiplied plainly (no word_product here, so that the
+  // independent checker, which recomputes kept bases through this code, shares no product routine)
+  Matrix p = Matrix::identity(model.field, w.dimension());
+  for (const Matrix* g : fwd) p = *g * p;
+  p = q * p;
+  for (const Matrix* g : back) p = *g * p;
+  return p;
 }
 
 SparseMatrix multiply(const SparseMatrix& a, const SparseMatrix& b, const FieldPtr& f) {
