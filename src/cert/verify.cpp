@@ -1,10 +1,10 @@
 // The independent checker behind `zetabraid verify`.
 //
 // Shared with the producer (trusted base, small and separately tested): the exact field, Matrix arithmetic,
-// the model loader, the fusion-tree enumeration and the charge projectors. NOT shared: the generator matrices
-// (rebuilt here by applying the F-R-F move to basis vectors directly), every product of a word (a plain
-// left-to-right application here; the producer goes through linalg/word_product), the leakage formula and the
-// decision logic.
+// the model loader, the fusion-tree enumeration and the charge projectors that recompute the kept basis.
+// NOT shared: the action of the word's letters (rebuilt here by applying the F-R-F move to basis vectors
+// directly), every product of a word (a plain left-to-right application here; the producer goes through
+// linalg/word_product), the leakage formula and the decision logic.
 #include <fmt/format.h>
 
 #include <filesystem>
