@@ -1,6 +1,7 @@
 // A self-contained PARI/GP script re-checking a certificate's claim without zetabraid.
 #include <fmt/format.h>
 
+#include "zetabraid/braid/subspace.hpp"
 #include "zetabraid/cert/certificate.hpp"
 #include "zetabraid/error.hpp"
 
@@ -124,6 +125,16 @@ gen(an, tot, k) = {
   g += fmt::format("WORD = {};\n", word);
   g += fmt::format("V = {};\n", matrix_gp(in.keep->basis));
   g += fmt::format("DIM = {}; KK = {};\n", in.space->dimension(), in.keep->kept());
+  // charge groups of the kept subspace (kind "charges"): [first, last, charge] with 1-based label indices
+  std::string groups = "[]";
+  if (in.keep_kind == "charges") {
+    groups = "[";
+    auto gs = parse_keep(m, in.keep_spec, static_cast<int>(in.anyons.size()));
+    for (size_t i = 0; i < gs.size(); ++i)
+      groups += fmt::format("{}[{}, {}, {}]", i ? ", " : "", gs[i].first, gs[i].last, gs[i].charge + 1);
+    groups += "]";
+  }
+  g += fmt::format("GROUPS = {};\n", groups);
   g += fmt::format("VERDICT = \"{}\";\nUNITARY = {};\n", r.verdict, m.claims_unitary ? 1 : 0);
   g += fmt::format("LEAK = {};\n", r.leakage ? scalar_gp(*r.leakage) : "0");
   g += fmt::format("HAVELEAK = {};\n", r.leakage ? 1 : 0);
@@ -140,6 +151,19 @@ for (t = 1, #WORD, my(key = [lab, WORD[t]], g);
   W = g[1] * W; lab = g[2]);
 if (lab != AN, fail("the word does not return the anyons to their order"));
 leakfree = (matrank(concat(V, W)) == KK);
+\\ the kept space from the charge groups, by a different route than zetabraid's: braid each block to the
+\\ front of the whole register (the anyon before it crosses the block, repeatedly), read its charge there
+\\ as the intermediate label x_m, braid back: P = B^-1 Q B; then V must span exactly the image of prod P.
+if (#GROUPS,
+  my(P = matid(DIM));
+  for (q = 1, #GROUPS, my(i0 = GROUPS[q][1], j0 = GROUPS[q][2], ch = GROUPS[q][3], m = j0 - i0 + 1,
+                          lb = AN, B = matid(DIM), Q, T);
+    forstep (r0 = i0 - 1, 1, -1, for (s0 = r0, r0 + m - 1, my(gg = gen(lb, TOT, s0)); B = gg[1] * B; lb = gg[2]));
+    T = trees(lb, TOT);
+    Q = matrix(DIM, DIM, a, b, if (a == b && T[a][m] == ch, E(1), E(0)));
+    P = B^(-1) * Q * B * P);
+  if (P * V != V, fail("a kept basis vector violates the charge constraints"));
+  if (matrank(P) != KK, fail("the kept basis does not span the charge subspace")));
 if (METHOD == "exact",
   if (leakfree && VERDICT != "leak-free", fail("the braid is leak-free, the claim says otherwise"));
   if (!leakfree && VERDICT != "leaks", fail("the braid leaks, the claim says otherwise")));

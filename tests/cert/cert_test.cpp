@@ -289,6 +289,15 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
         g3.insert(q + 8, "1/1000 + ");
         CHECK(zbtest::gp(g3).find("zetabraid-gp: REJECTED: the exact leakage differs") != std::string::npos);
       }
+      if (c.method == "exact") {
+        // GP recomputes the kept space from the charge groups by braiding each block to the front: a wrong
+        // charge for anyons 4-6 must be noticed
+        std::string g4 = slurp(gpf);
+        auto q = g4.find("GROUPS = [[1, 3, 2], [4, 6, 2]]");
+        REQUIRE(q != std::string::npos);
+        g4.replace(q, 31, "GROUPS = [[1, 3, 2], [4, 6, 1]]");
+        CHECK(zbtest::gp(g4).find("zetabraid-gp: REJECTED: a kept basis vector violates") != std::string::npos);
+      }
       if (c.method == "interval" && verdict == "leaks") {
         auto q = g3.find("\nUPPER = ");
         REQUIRE(q != std::string::npos);
