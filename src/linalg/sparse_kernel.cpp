@@ -126,8 +126,21 @@ void axpy_rows(std::int64_t* __restrict dst, const std::int64_t* __restrict src,
 }  // namespace
 
 SmallBlock apply(const SparseLetter& g, const SmallBlock& x) {
+  SmallBlock y;
+  apply_into(&y, g, x);
+  return y;
+}
+
+void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
   if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
-  SmallBlock y{g.rows(), x.k, x.n, x.masks, std::vector<std::int64_t>(static_cast<size_t>(x.masks * g.rows() * x.k * x.n), 0)};
+  if (out == &x) throw MathError("apply_into: output aliases the operand");
+  SmallBlock& y = *out;
+  y.rows = g.rows();
+  y.k = x.k;
+  y.n = x.n;
+  y.masks = x.masks;
+  y.a.assign(static_cast<size_t>(x.masks * g.rows() * x.k * x.n), 0);  // keeps the buffer when the size repeats
+  y.bound = -1;
   const long k = x.k, n = x.n;
   if (x.bound >= 0) y.bound = x.bound * g.beta() * (1 + 1e-12);
   for (const auto& t : g.terms()) {
@@ -135,7 +148,6 @@ SmallBlock apply(const SparseLetter& g, const SmallBlock& x) {
     const std::int64_t* src = x.a.data() + ((t.from * x.rows + t.c) * k) * n;
     axpy_rows(dst, src, t.m.data(), t.m.size(), k);
   }
-  return y;
 }
 
 BigBlock::BigBlock(long r, long kk, long nn, long m) : rows(r), k(kk), n(nn), masks(m), a(static_cast<size_t>(m * r * kk * nn)) {

@@ -71,6 +71,8 @@ struct BigBlock {
 /// Whether G applied to x is safe in int64.
 bool fits_small(const SparseLetter& g, SmallBlock& x);
 SmallBlock apply(const SparseLetter& g, const SmallBlock& x);
+/// Same into *out (must not be x), reusing its buffer.
+void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
 BigBlock apply(const SparseLetter& g, const BigBlock& x);
 
 }  // namespace zb::detail

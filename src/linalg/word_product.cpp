@@ -252,7 +252,7 @@ void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, 
                   const PolyContext& ctx) {
   const long n = ctx.degree(), masks = 1L << ctx.field()->radicand_count();
   bool empty = true;
-  detail::SmallBlock acc;
+  detail::SmallBlock acc, spare;
   for (size_t x = lo; x < hi; ++x) {
     const detail::SparseLetter& g = kern[seq[x]];
     if (empty) acc = detail::SmallBlock::identity(g.cols(), n, masks);
@@ -267,7 +267,8 @@ void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, 
         continue;
       }
     }
-    acc = detail::apply(g, acc);
+    detail::apply_into(&spare, g, acc);
+    std::swap(acc, spare);
     empty = false;
   }
   if (!empty) out->push_back(acc.to_poly(ctx));
@@ -358,7 +359,7 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
     if (opt.small_kernel) kern = kernels(c.leaves, ctx);
     if (!kern.empty()) {
       const long n = ctx.degree(), masks = 1L << ctx.field()->radicand_count();
-      detail::SmallBlock small;
+      detail::SmallBlock small, spare;
       bool is_small = detail::SmallBlock::from_poly(&small, s, n, masks);
       detail::BigBlock big;
       if (!is_small) {
@@ -387,7 +388,8 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
           is_small = false;
           break;
         }
-        small = detail::apply(g, small);
+        detail::apply_into(&spare, g, small);
+        std::swap(small, spare);
         ++x;
       }
       if (is_small) return small.to_poly(ctx, s.denominator()).to_matrix(ctx);
@@ -412,7 +414,8 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
         while (x < total) {
           const detail::SparseLetter& g = kern[c.tokens[x].leaf];
           if (!detail::fits_small(g, blk)) break;
-          blk = detail::apply(g, blk);
+          detail::apply_into(&spare, g, blk);
+          std::swap(blk, spare);
           ++x;
           ++used;
         }
