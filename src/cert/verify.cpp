@@ -157,19 +157,6 @@ class Action {
 };
 
 // rho(w) applied to the columns of v, exactly, one letter at a time.
-Matrix exact_image(Action& act, const std::vector<int>& anyons, const Word& w, const Matrix& v) {
-  Matrix out(v.field(), v.rows(), v.cols());
-  for (size_t j = 0; j < v.cols(); ++j) {
-    std::vector<Scalar> col(v.rows(), Scalar(v.field()));
-    for (size_t i = 0; i < v.rows(); ++i) col[i] = v(i, j);
-    std::vector<int> labels = anyons;
-    for (int l : w.letters) col = act.apply(labels, l, col);
-    if (labels != anyons) reject("the word does not return the anyons to their order");
-    for (size_t i = 0; i < v.rows(); ++i) out(i, j) = col[i];
-  }
-  return out;
-}
-
 // Exact matrix of one letter on V(labels), from the action on basis vectors.
 Matrix letter_matrix(Action& act, const std::vector<int>& labels, int k) {
   const FusionSpace& sp = act.space(labels);
@@ -183,6 +170,46 @@ Matrix letter_matrix(Action& act, const std::vector<int>& labels, int k) {
     for (size_t i = 0; i < n; ++i) m(i, j) = c[i];
   }
   return m;
+}
+
+// rho(w) applied to the columns of v, exactly, one letter at a time: each distinct letter's action is
+// tabulated once (from the F-R-F move on basis vectors) as its nonzero entries, then applied plainly.
+Matrix exact_image(Action& act, const std::vector<int>& anyons, const Word& w, const Matrix& v) {
+  struct Entry {
+    size_t row, col;
+    Scalar value;
+  };
+  std::map<std::pair<std::vector<int>, int>, std::vector<Entry>> tables;
+  std::vector<std::vector<Scalar>> cols(v.cols(), std::vector<Scalar>(v.rows(), Scalar(v.field())));
+  for (size_t j = 0; j < v.cols(); ++j)
+    for (size_t i = 0; i < v.rows(); ++i) cols[j][i] = v(i, j);
+  std::vector<int> labels = anyons;
+  for (int l : w.letters) {
+    auto key = std::make_pair(labels, l);
+    auto it = tables.find(key);
+    size_t rows = 0;
+    if (it == tables.end()) {
+      Matrix g = letter_matrix(act, labels, l);
+      std::vector<Entry> e;
+      for (size_t c = 0; c < g.cols(); ++c)
+        for (size_t r = 0; r < g.rows(); ++r)
+          if (!g(r, c).is_zero()) e.push_back({r, c, g(r, c)});
+      it = tables.emplace(key, std::move(e)).first;
+    }
+    std::swap(labels[static_cast<size_t>(std::abs(l)) - 1], labels[static_cast<size_t>(std::abs(l))]);
+    rows = act.space(labels).dimension();
+    for (auto& col : cols) {
+      std::vector<Scalar> next(rows, Scalar(v.field()));
+      for (const Entry& e : it->second)
+        if (!col[e.col].is_zero()) next[e.row] += e.value * col[e.col];
+      col = std::move(next);
+    }
+  }
+  if (labels != anyons) reject("the word does not return the anyons to their order");
+  Matrix out(v.field(), v.rows(), v.cols());
+  for (size_t j = 0; j < v.cols(); ++j)
+    for (size_t i = 0; i < v.rows(); ++i) out(i, j) = cols[j][i];
+  return out;
 }
 
 // The part of W outside span V: D = W - V G^-1 V* W (zero exactly when W lies in span V), and the unitary
