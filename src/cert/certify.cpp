@@ -319,8 +319,9 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
   res.letters = w.size();
   res.unitary = model.claims_unitary;
   Method m = opt.method;
-  if (m == Method::kAuto)
-    m = w.size() * space.dimension() * keep.kept() <= opt.exact_budget ? Method::kExact : Method::kInterval;
+  if (m == Method::kAuto)  // interval bounds need unitary data; without it only the exact decision is possible
+    m = !res.unitary || w.size() * space.dimension() * keep.kept() <= opt.exact_budget ? Method::kExact
+                                                                                       : Method::kInterval;
   res.method = m;
   if (m == Method::kExact) {
     Matrix img = letters.empty() ? keep.basis : word_product_columns(letters, keep.basis);
