@@ -396,7 +396,14 @@ struct IntWorker {
     fmpz* co = x->coeffs;
     for (long i = len - 1; i >= d; --i) {
       if (fmpz_is_zero(co + i)) continue;
-      for (const auto& [cj, j] : T.modulus) fmpz_submul_si(co + (i - d + j), co + i, cj);
+      // Not fmpz_submul_si: in FLINT 2.9 the _si variants can leave a small result in non-canonical form
+      // (then equal numbers compare unequal); the _ui variants are correct.
+      for (const auto& [cj, j] : T.modulus) {
+        if (cj > 0)
+          fmpz_submul_ui(co + (i - d + j), co + i, static_cast<ulong>(cj));
+        else if (cj < 0)
+          fmpz_addmul_ui(co + (i - d + j), co + i, static_cast<ulong>(-cj));
+      }
       fmpz_zero(co + i);
     }
     _fmpz_poly_set_length(x, d);
