@@ -158,10 +158,10 @@ bool interval_bounds(const std::string& ball, long prec, std::string* upper, std
   arf_init(u);
   arf_init(floor_bound);
   arb_get_ubound_arf(u, b, 128);
-  // never state "leakage <= 0": the bound is at least 2^-prec
+  // never state "leakage <= 0": an enclosure whose upper end is 0 is reported as <= 2^-prec
   arf_one(floor_bound);
   arf_mul_2exp_si(floor_bound, floor_bound, -prec);
-  if (arf_cmp(u, floor_bound) < 0) arf_set(u, floor_bound);
+  if (arf_sgn(u) <= 0) arf_set(u, floor_bound);
   *upper = decimal_upper(u, 6);
   bool positive = arb_is_positive(b);
   lower->clear();
