@@ -178,17 +178,23 @@ std::string ratio(double t, double base) {
 
 int main(int argc, char** argv) {
   if (argc < 2) {
-    std::fprintf(stderr, "usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS]\n");
+    std::fprintf(stderr, "usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS] [--anyons N] [--length L] [--no-gp]\n");
     return 2;
   }
   std::string gp = "gp";
   bool quick = false;
   double gp_limit = 120;
+  int only_n = 0;         // --anyons N: only that case
+  size_t only_len = 0;    // --length L: only that length
+  bool no_gp = false;     // --no-gp: skip the PARI/GP runs
   for (int i = 2; i < argc; ++i) {
     std::string a = argv[i];
     if (a == "--quick") quick = true;
     else if (a == "--gp" && i + 1 < argc) gp = argv[++i];
     else if (a == "--gp-limit" && i + 1 < argc) gp_limit = std::atof(argv[++i]);
+    else if (a == "--anyons" && i + 1 < argc) only_n = std::atoi(argv[++i]);
+    else if (a == "--length" && i + 1 < argc) only_len = static_cast<size_t>(std::atol(argv[++i]));
+    else if (a == "--no-gp") no_gp = true;
   }
   Model model = load_model(argv[1]);
   int one = model.label_index("1"), tau = model.label_index("t");
@@ -197,6 +203,8 @@ int main(int argc, char** argv) {
   std::vector<size_t> lengths = quick ? std::vector<size_t>{100, 1000} : std::vector<size_t>{100, 1000, 10000, 100000};
   std::vector<int> counts = quick ? std::vector<int>{6, 10} : std::vector<int>{6, 10, 14};
   const double exact_budget = 300;
+  if (only_n) counts = {only_n};
+  if (only_len) lengths = {only_len};
   int gp_checked = 0;  // seconds: skip an exact run predicted to take longer
 
   fmt::print("Fibonacci anyons, total charge 1; times as ratios to complex double (same process, same word).\n");
@@ -253,7 +261,7 @@ int main(int argc, char** argv) {
         sink = sink + static_cast<double>(im(0, 0));
       });
       std::string gps = "-", gpe = "-";
-      if (len <= 10000) {
+      if (len <= 10000 && !no_gp) {
         int agrees = -1;
         double t_gp = gp_time(gp, *model.field, w, start, gp_limit, exact.get(), &agrees);
         if (agrees == 0) {

@@ -2,6 +2,7 @@
 
 #include <cmath>
 #include <cstdlib>
+#include <algorithm>
 #include <map>
 
 #include "zetabraid/error.hpp"
@@ -69,6 +70,22 @@ bool SparseLetter::make(SparseLetter* out, const PolyMatrix& g, const PolyContex
   fmpz_poly_clear(xt);
   fmpz_poly_clear(h);
   if (!ok) return false;
+  // Grouped form: terms by destination (to, i); dense n x n matrices.
+  out->groups_.clear();
+  out->sources_.clear();
+  out->dense_.clear();
+  std::map<std::pair<int, long>, std::vector<size_t>> by_dest;
+  for (size_t q = 0; q < out->terms_.size(); ++q) by_dest[{out->terms_[q].to, out->terms_[q].i}].push_back(q);
+  for (const auto& [dest, list] : by_dest) {
+    out->groups_.push_back({dest.first, dest.second, out->sources_.size(), list.size()});
+    for (size_t q : list) {
+      const Term& t = out->terms_[q];
+      out->sources_.push_back({t.from, t.c, out->dense_.size()});
+      out->dense_.resize(out->dense_.size() + static_cast<size_t>(n * n), 0);
+      std::int64_t* d = out->dense_.data() + out->sources_.back().dense;
+      for (const KernelEntry& e : t.m) d[e.r * n + e.t] += e.v;
+    }
+  }
   out->beta_ = 0;
   for (const auto& [key, v] : rowsum) out->beta_ = std::max(out->beta_, v);
   return true;
@@ -131,7 +148,79 @@ SmallBlock apply(const SparseLetter& g, const SmallBlock& x) {
   return y;
 }
 
-void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
+namespace {
+// One destination column block: dst[r * k + j] = sum over the group's sources of M[r][t] * src[t * k + j], for
+// N coefficients (compile-time) and every column j. Partial sums are sums of a subset of the terms that the
+// letter's beta bounds, so they stay below the same int64 limit as the entry-by-entry kernel.
+template <int N>
+void group_columns(std::int64_t* __restrict dst, const std::int64_t* const* src, const std::int64_t* const* mat,
+                   size_t count, long k, bool add) {
+  for (long j = 0; j < k; ++j) {
+    std::int64_t acc[N];
+    for (int r = 0; r < N; ++r) acc[r] = add ? dst[r * k + j] : 0;
+    for (size_t q = 0; q < count; ++q) {
+      const std::int64_t* s = src[q] + j;
+      const std::int64_t* m = mat[q];
+      std::int64_t v[N];
+      for (int t = 0; t < N; ++t) v[t] = s[t * k];
+      for (int r = 0; r < N; ++r)
+        for (int t = 0; t < N; ++t) acc[r] += m[r * N + t] * v[t];
+    }
+    for (int r = 0; r < N; ++r) dst[r * k + j] = acc[r];
+  }
+}
+
+void group_columns_any(std::int64_t* __restrict dst, const std::int64_t* const* src, const std::int64_t* const* mat,
+                       size_t count, long k, long n, bool add) {
+  for (long j = 0; j < k; ++j)
+    for (long r = 0; r < n; ++r) {
+      std::int64_t acc = add ? dst[r * k + j] : 0;
+      for (size_t q = 0; q < count; ++q)
+        for (long t = 0; t < n; ++t) acc += mat[q][r * n + t] * src[q][t * k + j];
+      dst[r * k + j] = acc;
+    }
+}
+}  // namespace
+
+void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) { apply_into_grouped(out, g, x); }
+
+void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
+  if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
+  if (out == &x) throw MathError("apply_into: output aliases the operand");
+  SmallBlock& y = *out;
+  y.rows = g.rows();
+  y.k = x.k;
+  y.n = x.n;
+  y.masks = x.masks;
+  y.a.assign(static_cast<size_t>(x.masks * g.rows() * x.k * x.n), 0);  // rows no group writes stay zero
+  y.bound = -1;
+  const long k = x.k, n = x.n;
+  if (x.bound >= 0) y.bound = x.bound * g.beta() * (1 + 1e-12);
+  const std::int64_t* src[64];
+  const std::int64_t* mat[64];
+  for (const auto& gr : g.groups()) {
+    std::int64_t* dst = y.a.data() + ((gr.to * y.rows + gr.i) * k) * n;
+    for (size_t first = 0; first < gr.count; first += 64) {
+      size_t cnt = std::min<size_t>(64, gr.count - first);
+      for (size_t q = 0; q < cnt; ++q) {
+        const auto& so = g.sources()[gr.first + first + q];
+        src[q] = x.a.data() + ((so.from * x.rows + so.c) * k) * n;
+        mat[q] = g.dense().data() + so.dense;
+      }
+      const bool add = first > 0;  // later chunks of a long group add to the first one's sums
+      switch (n) {
+        case 1: group_columns<1>(dst, src, mat, cnt, k, add); break;
+        case 2: group_columns<2>(dst, src, mat, cnt, k, add); break;
+        case 4: group_columns<4>(dst, src, mat, cnt, k, add); break;
+        case 6: group_columns<6>(dst, src, mat, cnt, k, add); break;
+        case 8: group_columns<8>(dst, src, mat, cnt, k, add); break;
+        default: group_columns_any(dst, src, mat, cnt, k, n, add); break;
+      }
+    }
+  }
+}
+
+void apply_into_entries(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
   if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
   if (out == &x) throw MathError("apply_into: output aliases the operand");
   SmallBlock& y = *out;

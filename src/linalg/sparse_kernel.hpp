@@ -36,10 +36,30 @@ class SparseLetter {
   };
   const std::vector<Term>& terms() const { return terms_; }
 
+  /// The same terms grouped by destination (result mask, row i), each with its dense n x n multiplication
+  /// matrix: the grouped kernel keeps one destination column of n coefficients in registers while it sums
+  /// over the group (each destination written once). Built by make for every letter.
+  struct Source {
+    int from;
+    long c;
+    size_t dense;  // offset of the n x n matrix (row-major, [r][t]) in dense()
+  };
+  struct Group {
+    int to;
+    long i;
+    size_t first, count;  // into sources()
+  };
+  const std::vector<Group>& groups() const { return groups_; }
+  const std::vector<Source>& sources() const { return sources_; }
+  const std::vector<std::int64_t>& dense() const { return dense_; }
+
  private:
   long rows_ = 0, cols_ = 0;
   double beta_ = 0;
   std::vector<Term> terms_;
+  std::vector<Group> groups_;
+  std::vector<Source> sources_;
+  std::vector<std::int64_t> dense_;
 };
 
 /// Dense coefficient array for a rows x k matrix with 2^m masks.
@@ -71,8 +91,11 @@ struct BigBlock {
 /// Whether G applied to x is safe in int64.
 bool fits_small(const SparseLetter& g, SmallBlock& x);
 SmallBlock apply(const SparseLetter& g, const SmallBlock& x);
-/// Same into *out (must not be x), reusing its buffer.
+/// Same into *out (must not be x), reusing its buffer. Uses the grouped kernel (apply_into_grouped) when
+/// grouped is true, else the entry-by-entry kernel (apply_into_entries); both give identical results.
 void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
+void apply_into_entries(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
+void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
 BigBlock apply(const SparseLetter& g, const BigBlock& x);
 
 }  // namespace zb::detail
