@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 
+#include <functional>
+
 #include "zetabraid/error.hpp"
 
 namespace zb {
@@ -279,20 +281,24 @@ void Cyclo::ball(acb_t out, long prec) const {
   fmpq_poly_clear(p);
 }
 
-int Cyclo::real_sign() const {
-  if (!is_real()) throw MathError("sign requested of a non-real number " + str());
-  if (is_zero()) return 0;
+int sign_of_nonzero_real(const std::function<void(acb_t, long)>& ball_at, const std::string& what) {
   acb_t b;
   acb_init(b);
   int s = 0;
-  for (long prec = 64; prec <= (1L << 20); prec *= 2) {
-    ball(b, prec);
-    if (arb_is_positive(acb_realref(b))) { s = 1; break; }
-    if (arb_is_negative(acb_realref(b))) { s = -1; break; }
+  for (long prec = 64; prec <= (1L << 20) && s == 0; prec *= 2) {
+    ball_at(b, prec);
+    if (arb_is_positive(acb_realref(b))) s = 1;
+    else if (arb_is_negative(acb_realref(b))) s = -1;
   }
   acb_clear(b);
-  if (s == 0) throw ResourceError("could not decide the sign of " + str() + " within 2^20 bits");
+  if (s == 0) throw ResourceError("could not decide the sign of " + what + " within 2^20 bits");
   return s;
+}
+
+int Cyclo::real_sign() const {
+  if (!is_real()) throw MathError("sign requested of a non-real number " + str());
+  if (is_zero()) return 0;
+  return sign_of_nonzero_real([this](acb_t b, long prec) { ball(b, prec); }, str());
 }
 
 }  // namespace zb

@@ -359,17 +359,7 @@ int Scalar::real_sign() const {
   if (!is_real()) throw MathError("sign requested of a non-real number " + str());
   if (is_zero()) return 0;
   if (in_base()) return base_part().real_sign();
-  acb_t b;
-  acb_init(b);
-  int s = 0;
-  for (long prec = 64; prec <= (1L << 20); prec *= 2) {
-    ball(b, prec);
-    if (arb_is_positive(acb_realref(b))) { s = 1; break; }
-    if (arb_is_negative(acb_realref(b))) { s = -1; break; }
-  }
-  acb_clear(b);
-  if (s == 0) throw ResourceError("could not decide the sign of " + str() + " within 2^20 bits");
-  return s;
+  return sign_of_nonzero_real([this](acb_t b, long prec) { ball(b, prec); }, str());
 }
 
 std::string Scalar::str() const {

@@ -3,6 +3,7 @@
 // Embedding convention (fixed throughout zetabraid): zeta |-> exp(2*pi*i/N).
 // Elements are stored in the power basis 1, zeta, ..., zeta^(phi(N)-1) modulo the cyclotomic polynomial Phi_N.
 #pragma once
+#include <functional>
 #include <memory>
 #include <string>
 #include <vector>
@@ -103,6 +104,10 @@ class Cyclo {
   CyclotomicFieldPtr k_;
   nf_elem_t v_;
 };
+
+/// Sign of a number known to be real and nonzero, from enclosures ball_at(out, prec) at doubling precision
+/// (a nonzero real is eventually separated from 0). ResourceError past 2^20 bits.
+int sign_of_nonzero_real(const std::function<void(acb_t, long)>& ball_at, const std::string& what);
 
 /// Euler's phi.
 unsigned long euler_phi(unsigned long n);
