@@ -3,6 +3,9 @@
 #include <cmath>
 #include <cstdlib>
 #include <algorithm>
+#if defined(__x86_64__) && defined(__GNUC__)
+#include <immintrin.h>
+#endif
 #include <map>
 
 #include "zetabraid/error.hpp"
@@ -83,7 +86,7 @@ bool SparseLetter::make(SparseLetter* out, const PolyMatrix& g, const PolyContex
       out->sources_.push_back({t.from, t.c, out->dense_.size()});
       out->dense_.resize(out->dense_.size() + static_cast<size_t>(n * n), 0);
       std::int64_t* d = out->dense_.data() + out->sources_.back().dense;
-      for (const KernelEntry& e : t.m) d[e.r * n + e.t] += e.v;
+      for (const KernelEntry& e : t.m) d[e.t * n + e.r] += e.v;  // column-major: [t][r]
     }
   }
   out->beta_ = 0;
@@ -164,11 +167,61 @@ void group_columns(std::int64_t* __restrict dst, const std::int64_t* const* src,
       std::int64_t v[N];
       for (int t = 0; t < N; ++t) v[t] = s[t * k];
       for (int r = 0; r < N; ++r)
-        for (int t = 0; t < N; ++t) acc[r] += m[r * N + t] * v[t];
+        for (int t = 0; t < N; ++t) acc[r] += m[t * N + r] * v[t];
     }
     for (int r = 0; r < N; ++r) dst[r * k + j] = acc[r];
   }
 }
+
+// The same for N = 4 and 8 with AVX-512 (DQ, VL) 64-bit lane multiplies: one vector holds the N coefficients of
+// a destination column; each source adds column t of its matrix times the broadcast operand coefficient. Same
+// integer operations as group_columns (wrapping int64 arithmetic, exact under the same bound), so the results are
+// identical; chosen at run time when the processor has these instructions.
+#if defined(__x86_64__) && defined(__GNUC__)
+#define ZB_HAVE_AVX512_KERNEL 1
+__attribute__((target("avx512f,avx512dq,avx512vl"))) void group_columns4_avx512(
+    std::int64_t* __restrict dst, const std::int64_t* const* src, const std::int64_t* const* mat, size_t count, long k,
+    bool add) {
+  for (long j = 0; j < k; ++j) {
+    __m256i acc = add ? _mm256_set_epi64x(dst[3 * k + j], dst[2 * k + j], dst[k + j], dst[j]) : _mm256_setzero_si256();
+    for (size_t q = 0; q < count; ++q) {
+      const std::int64_t* s = src[q] + j;
+      const std::int64_t* m = mat[q];
+      acc = _mm256_add_epi64(acc, _mm256_mullo_epi64(_mm256_loadu_si256(reinterpret_cast<const __m256i*>(m)), _mm256_set1_epi64x(s[0])));
+      acc = _mm256_add_epi64(acc, _mm256_mullo_epi64(_mm256_loadu_si256(reinterpret_cast<const __m256i*>(m + 4)), _mm256_set1_epi64x(s[k])));
+      acc = _mm256_add_epi64(acc, _mm256_mullo_epi64(_mm256_loadu_si256(reinterpret_cast<const __m256i*>(m + 8)), _mm256_set1_epi64x(s[2 * k])));
+      acc = _mm256_add_epi64(acc, _mm256_mullo_epi64(_mm256_loadu_si256(reinterpret_cast<const __m256i*>(m + 12)), _mm256_set1_epi64x(s[3 * k])));
+    }
+    alignas(32) std::int64_t out[4];
+    _mm256_store_si256(reinterpret_cast<__m256i*>(out), acc);
+    for (int r = 0; r < 4; ++r) dst[r * k + j] = out[r];
+  }
+}
+
+__attribute__((target("avx512f,avx512dq,avx512vl"))) void group_columns8_avx512(
+    std::int64_t* __restrict dst, const std::int64_t* const* src, const std::int64_t* const* mat, size_t count, long k,
+    bool add) {
+  for (long j = 0; j < k; ++j) {
+    alignas(64) std::int64_t out[8];
+    for (int r = 0; r < 8; ++r) out[r] = add ? dst[r * k + j] : 0;
+    __m512i acc = _mm512_load_si512(out);
+    for (size_t q = 0; q < count; ++q) {
+      const std::int64_t* s = src[q] + j;
+      const std::int64_t* m = mat[q];
+      for (int t = 0; t < 8; ++t)
+        acc = _mm512_add_epi64(acc, _mm512_mullo_epi64(_mm512_loadu_si512(m + 8 * t), _mm512_set1_epi64(s[t * k])));
+    }
+    _mm512_store_si512(out, acc);
+    for (int r = 0; r < 8; ++r) dst[r * k + j] = out[r];
+  }
+}
+
+bool have_avx512() {
+  static const bool yes = __builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512dq") &&
+                          __builtin_cpu_supports("avx512vl");
+  return yes;
+}
+#endif
 
 void group_columns_any(std::int64_t* __restrict dst, const std::int64_t* const* src, const std::int64_t* const* mat,
                        size_t count, long k, long n, bool add) {
@@ -176,7 +229,7 @@ void group_columns_any(std::int64_t* __restrict dst, const std::int64_t* const* 
     for (long r = 0; r < n; ++r) {
       std::int64_t acc = add ? dst[r * k + j] : 0;
       for (size_t q = 0; q < count; ++q)
-        for (long t = 0; t < n; ++t) acc += mat[q][r * n + t] * src[q][t * k + j];
+        for (long t = 0; t < n; ++t) acc += mat[q][t * n + r] * src[q][t * k + j];
       dst[r * k + j] = acc;
     }
 }
@@ -184,7 +237,12 @@ void group_columns_any(std::int64_t* __restrict dst, const std::int64_t* const* 
 
 void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) { apply_into_grouped(out, g, x); }
 
-void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
+void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool allow_vector) {
+#ifdef ZB_HAVE_AVX512_KERNEL
+  const bool vector = allow_vector && have_avx512();
+#else
+  (void)allow_vector;
+#endif
   if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
   if (out == &x) throw MathError("apply_into: output aliases the operand");
   SmallBlock& y = *out;
@@ -211,9 +269,20 @@ void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock
       switch (n) {
         case 1: group_columns<1>(dst, src, mat, cnt, k, add); break;
         case 2: group_columns<2>(dst, src, mat, cnt, k, add); break;
+#ifdef ZB_HAVE_AVX512_KERNEL
+        case 4:
+          if (vector) group_columns4_avx512(dst, src, mat, cnt, k, add);
+          else group_columns<4>(dst, src, mat, cnt, k, add);
+          break;
+        case 8:
+          if (vector) group_columns8_avx512(dst, src, mat, cnt, k, add);
+          else group_columns<8>(dst, src, mat, cnt, k, add);
+          break;
+#else
         case 4: group_columns<4>(dst, src, mat, cnt, k, add); break;
-        case 6: group_columns<6>(dst, src, mat, cnt, k, add); break;
         case 8: group_columns<8>(dst, src, mat, cnt, k, add); break;
+#endif
+        case 6: group_columns<6>(dst, src, mat, cnt, k, add); break;
         default: group_columns_any(dst, src, mat, cnt, k, n, add); break;
       }
     }

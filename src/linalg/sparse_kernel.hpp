@@ -91,11 +91,11 @@ struct BigBlock {
 /// Whether G applied to x is safe in int64.
 bool fits_small(const SparseLetter& g, SmallBlock& x);
 SmallBlock apply(const SparseLetter& g, const SmallBlock& x);
-/// Same into *out (must not be x), reusing its buffer. Uses the grouped kernel (apply_into_grouped) when
-/// grouped is true, else the entry-by-entry kernel (apply_into_entries); both give identical results.
+/// Same into *out (must not be x), reusing its buffer, with the grouped kernel. apply_into_entries (entry by
+/// entry) and apply_into_grouped with allow_vector = false (no AVX-512 lanes) give identical results (tests).
 void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
 void apply_into_entries(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
-void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
+void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool allow_vector = true);
 BigBlock apply(const SparseLetter& g, const BigBlock& x);
 
 }  // namespace zb::detail

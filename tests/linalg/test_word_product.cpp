@@ -400,7 +400,8 @@ TEST_CASE("int64 block kernel equals the fmpz path and the left-to-right product
 TEST_CASE("grouped int64 kernel equals the entry-by-entry kernel and the left-to-right product") {
   // The grouped kernel (dense n x n multiplication matrices summed per destination in registers) against the
   // entry-by-entry kernel on random integral letters and operands, for degrees phi(N) = 2, 4, 6, 8 (compiled
-  // cases) and 10 (generic loop), with one and two radicands; plus a 2 x 70 letter whose destinations have more
+  // cases; 4 and 8 also with AVX-512 lanes when the processor has them) and 10 (generic loop), with one and two
+  // radicands; plus a 2 x 70 letter whose destinations have more
   // sources than one chunk holds. Then whole words against the naive product (N = 7, 11).
   std::vector<FieldPtr> fields = {Field::make(3), field_with_roots(5, {"zeta + zeta^4"}), Field::make(7),
                                   field_with_roots(15, {"2", "3"}), Field::make(11)};
@@ -433,10 +434,12 @@ TEST_CASE("grouped int64 kernel equals the entry-by-entry kernel and the left-to
         std::uniform_int_distribution<std::int64_t> big(-(std::int64_t{1} << 40), std::int64_t{1} << 40);
         x.a.resize(static_cast<size_t>(masks * static_cast<long>(c) * k * n));
         for (auto& v : x.a) v = big(rng);
-        detail::SmallBlock y1, y2;
+        detail::SmallBlock y1, y2, y4;
         detail::apply_into_entries(&y1, g, x);
         detail::apply_into_grouped(&y2, g, x);
+        detail::apply_into_grouped(&y4, g, x, false);  // scalar grouped loop (no AVX-512 lanes)
         CHECK(y1.a == y2.a);
+        CHECK(y1.a == y4.a);
         CHECK(y1.rows == y2.rows);
         // Negative control: a changed operand gives a different result.
         x.a[0] += 1;
