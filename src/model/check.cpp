@@ -731,18 +731,6 @@ CheckCount gather(const std::string& name, std::vector<BlockResult>& res, CheckR
   return cc;
 }
 
-std::vector<int> left_ch(const Model& m, int a, int b, int c, int d) {
-  std::vector<int> out;
-  for (int e = 0; e < m.label_count(); ++e)
-    if (m.fusion(a, b, e) && m.fusion(e, c, d)) out.push_back(e);
-  return out;
-}
-std::vector<int> right_ch(const Model& m, int a, int b, int c, int d) {
-  std::vector<int> out;
-  for (int f = 0; f < m.label_count(); ++f)
-    if (m.fusion(b, c, f) && m.fusion(a, f, d)) out.push_back(f);
-  return out;
-}
 
 }  // namespace
 
@@ -869,8 +857,8 @@ CheckReport check_model(const Model& M, const CheckOptions& opt) {
       for (int b = 0; b < n; ++b)
         for (int c = 0; c < n; ++c)
           for (int d = 0; d < n; ++d)
-            for (int e : left_ch(M, a, b, c, d))
-              for (int f : right_ch(M, a, b, c, d)) {
+            for (int e : M.left_channels(a, b, c, d))
+              for (int f : M.right_channels(a, b, c, d)) {
                 ++cc.count;
                 if (!M.f_given.count({a, b, c, d, e, f}))
                   add_failure(cc, simple(cc.name,
@@ -896,10 +884,10 @@ CheckReport check_model(const Model& M, const CheckOptions& opt) {
     for (int b = 0; b < n; ++b)
       for (int c = 0; c < n; ++c)
         for (int d = 0; d < n; ++d)
-          if (!left_ch(M, a, b, c, d).empty() || !right_ch(M, a, b, c, d).empty()) fblocks.push_back({a, b, c, d});
+          if (!M.left_channels(a, b, c, d).empty() || !M.right_channels(a, b, c, d).empty()) fblocks.push_back({a, b, c, d});
   auto block_matrix = [&](const std::array<int, 4>& B, std::vector<int>& rows, std::vector<int>& cols) {
-    rows = left_ch(M, B[0], B[1], B[2], B[3]);
-    cols = right_ch(M, B[0], B[1], B[2], B[3]);
+    rows = M.left_channels(B[0], B[1], B[2], B[3]);
+    cols = M.right_channels(B[0], B[1], B[2], B[3]);
     Matrix X(M.field, rows.size(), cols.size());
     for (size_t i = 0; i < rows.size(); ++i)
       for (size_t j = 0; j < cols.size(); ++j)

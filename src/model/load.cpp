@@ -230,19 +230,6 @@ class Loader {
       }
   }
 
-  std::vector<int> left_channels(const Model& m, int a, int b, int c, int d) {
-    std::vector<int> out;
-    for (int e = 0; e < m.label_count(); ++e)
-      if (m.fusion(a, b, e) && m.fusion(e, c, d)) out.push_back(e);
-    return out;
-  }
-  std::vector<int> right_channels(const Model& m, int a, int b, int c, int d) {
-    std::vector<int> out;
-    for (int f = 0; f < m.label_count(); ++f)
-      if (m.fusion(b, c, f) && m.fusion(a, f, d)) out.push_back(f);
-    return out;
-  }
-
   void put_f(Model& m, const std::array<int, 6>& k, Scalar v, int line, const toml::node* at,
              const std::string& key) {
     if (m.f_given.count(k)) fail(at, key, "this F entry is given twice");
@@ -263,8 +250,8 @@ class Loader {
         put_f(m, {l[0], l[1], l[2], l[3], l[4], l[5]}, value(v, key, m.field), line, &v, key);
         continue;
       }
-      auto rows = left_channels(m, l[0], l[1], l[2], l[3]);
-      auto cols = right_channels(m, l[0], l[1], l[2], l[3]);
+      auto rows = m.left_channels(l[0], l[1], l[2], l[3]);
+      auto cols = m.right_channels(l[0], l[1], l[2], l[3]);
       if (rows.empty() || cols.empty())
         fail(&v, key, "F^{abc}_d is not admissible under the fusion rules (no fusion tree a b c -> d)");
       if (rows.size() != cols.size())
@@ -304,8 +291,8 @@ class Loader {
       for (int b = 0; b < n; ++b)
         for (int c = 0; c < n; ++c)
           for (int d = 0; d < n; ++d) {
-            auto rows = left_channels(m, a, b, c, d);
-            auto cols = right_channels(m, a, b, c, d);
+            auto rows = m.left_channels(a, b, c, d);
+            auto cols = m.right_channels(a, b, c, d);
             if (rows.size() != 1 || cols.size() != 1) continue;
             std::array<int, 6> k{a, b, c, d, rows[0], cols[0]};
             if (m.f_given.count(k)) continue;

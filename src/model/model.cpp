@@ -57,6 +57,20 @@ std::vector<int> Model::channels(int a, int b) const {
   return out;
 }
 
+std::vector<int> Model::left_channels(int a, int b, int c, int d) const {
+  std::vector<int> out;
+  for (int e = 0; e < label_count(); ++e)
+    if (fusion(a, b, e) && fusion(e, c, d)) out.push_back(e);
+  return out;
+}
+
+std::vector<int> Model::right_channels(int a, int b, int c, int d) const {
+  std::vector<int> out;
+  for (int f = 0; f < label_count(); ++f)
+    if (fusion(b, c, f) && fusion(a, f, d)) out.push_back(f);
+  return out;
+}
+
 int Model::dual(int a) const {
   for (int b = 0; b < label_count(); ++b)
     if (fusion(a, b, 0) > 0) return b;

@@ -50,18 +50,6 @@ std::string value_text(const Scalar& v) {
   return s;
 }
 
-std::vector<int> left_ch(const Model& m, int a, int b, int c, int d) {
-  std::vector<int> out;
-  for (int e = 0; e < m.label_count(); ++e)
-    if (m.fusion(a, b, e) && m.fusion(e, c, d)) out.push_back(e);
-  return out;
-}
-std::vector<int> right_ch(const Model& m, int a, int b, int c, int d) {
-  std::vector<int> out;
-  for (int f = 0; f < m.label_count(); ++f)
-    if (m.fusion(b, c, f) && m.fusion(a, f, d)) out.push_back(f);
-  return out;
-}
 
 }  // namespace
 
@@ -107,7 +95,7 @@ std::string model_to_toml(const Model& m) {
     for (int b = 0; b < n; ++b)
       for (int c = 0; c < n; ++c)
         for (int d = 0; d < n; ++d) {
-          auto rows = left_ch(m, a, b, c, d), cols = right_ch(m, a, b, c, d);
+          auto rows = m.left_channels(a, b, c, d), cols = m.right_channels(a, b, c, d);
           if (rows.empty() || rows.size() != cols.size()) continue;
           bool any = false;
           for (int e : rows)

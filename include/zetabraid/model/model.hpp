@@ -45,6 +45,9 @@ struct Model {
   void set_fusion(int a, int b, int c, int mult);
   /// Channels c with N_{ab}^c > 0, ascending.
   std::vector<int> channels(int a, int b) const;
+  /// Row labels e of the block F^{abc}_d (a b -> e, e c -> d) and column labels f (b c -> f, a f -> d), ascending.
+  std::vector<int> left_channels(int a, int b, int c, int d) const;
+  std::vector<int> right_channels(int a, int b, int c, int d) const;
   /// The dual a* (N_{a a*}^0 = 1), or -1 if none.
   int dual(int a) const;
 
