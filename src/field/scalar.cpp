@@ -363,6 +363,10 @@ int Scalar::real_sign() const {
 }
 
 std::string Scalar::str() const {
+  return str([this](int j) { return "sqrt(" + f_->radicand(j).str() + ")"; });
+}
+
+std::string Scalar::str(const std::function<std::string(int)>& radical_name) const {
   if (t_.empty()) return "0";
   std::string s;
   for (const auto& [m, c] : t_) {
@@ -373,7 +377,7 @@ std::string Scalar::str() const {
     } else {
       std::string rad;
       for (int j = 0; j < 64; ++j)
-        if (m & (RadicalMask{1} << j)) rad += (rad.empty() ? "" : "*") + ("sqrt(" + f_->radicand(j).str() + ")");
+        if (m & (RadicalMask{1} << j)) rad += (rad.empty() ? "" : "*") + radical_name(j);
       if (cs == "1")
         term = rad;
       else if (cs == "-1")

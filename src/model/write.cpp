@@ -24,30 +24,7 @@ std::string quote(const std::string& s) {
 
 // A value with square roots written through the constants r1, r2, ... (r_j = sqrt(radicand j)).
 std::string value_text(const Scalar& v) {
-  if (v.is_zero()) return "0";
-  std::string s;
-  for (const auto& [mask, c] : v.terms()) {
-    std::string rad;
-    for (int j = 0; j < 64; ++j)
-      if (mask & (RadicalMask{1} << j)) rad += (rad.empty() ? "" : "*") + fmt::format("r{}", j + 1);
-    std::string cs = c.str(), term;
-    bool simple = cs.find_first_of(" ") == std::string::npos;
-    if (rad.empty())
-      term = cs;
-    else if (cs == "1")
-      term = rad;
-    else if (cs == "-1")
-      term = "-" + rad;
-    else
-      term = (simple ? cs : "(" + cs + ")") + "*" + rad;
-    if (s.empty())
-      s = term;
-    else if (term[0] == '-')
-      s += " - " + term.substr(1);
-    else
-      s += " + " + term;
-  }
-  return s;
+  return v.str([](int j) { return fmt::format("r{}", j + 1); });
 }
 
 

@@ -118,6 +118,8 @@ class Scalar {
 
   /// Canonical text in the expression syntax, e.g. "(zeta^3 + zeta^2)*sqrt(zeta^3 + zeta^2 + 1) + 1/2".
   std::string str() const;
+  /// The same text with sqrt(d_{j+1}) written as radical_name(j) (e.g. a named constant).
+  std::string str(const std::function<std::string(int)>& radical_name) const;
   void ball(acb_t out, long prec) const;
 
  private:
