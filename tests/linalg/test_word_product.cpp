@@ -464,3 +464,80 @@ TEST_CASE("grouped int64 kernel equals the entry-by-entry kernel and the left-to
     }
   }
 }
+
+TEST_CASE("poly matrix products equal the field product") {
+  // PolyMatrix::mul (mask pairs combined by XOR, radicand products, common denominators) must equal the Matrix
+  // product over the field (entry-wise Scalar arithmetic), with masks {0, S} only, with a radicand carrying a
+  // denominator, and with two radicals.
+  std::vector<FieldPtr> fields = {field_with_roots(5, {"zeta + zeta^4"}), field_with_roots(7, {"(zeta + zeta^6)/3 + 1"}),
+                                  field_with_roots(12, {"3", "zeta + zeta^11 + 5"})};
+  std::mt19937_64 rng(31337);
+  for (const FieldPtr& f : fields) {
+    CAPTURE(f->conductor());
+    PolyContext ctx(f);
+    for (int t = 0; t < 4; ++t) {
+      Matrix a = random_matrix(f, 3, 4, rng, 10), b = random_matrix(f, 4, 2, rng, 10);
+      if (f->radicand_count() == 2 && t % 2 == 0) {  // keep masks {0, 2} only
+        for (Matrix* m : {&a, &b})
+          for (size_t i = 0; i < m->rows(); ++i)
+            for (size_t j = 0; j < m->cols(); ++j) {
+              Scalar s(f);
+              for (const auto& [mask, c] : (*m)(i, j).terms()) s += Scalar::monomial(f, c, mask & 2);
+              (*m)(i, j) = s;
+            }
+      }
+      PolyMatrix pa = PolyMatrix::from_matrix(a, ctx), pb = PolyMatrix::from_matrix(b, ctx);
+      CHECK(PolyMatrix::mul(pa, pb, ctx).to_matrix(ctx) == a * b);
+      // Negative control: a changed factor gives a different product.
+      Matrix a2 = a;
+      a2(0, 0) += Scalar(f, 1);
+      CHECK(PolyMatrix::mul(PolyMatrix::from_matrix(a2, ctx), pb, ctx).to_matrix(ctx) != a * b);
+    }
+  }
+}
+
+TEST_CASE("fixed-point column balls contain the exact result") {
+  // The 128-bit fixed-point column method (kColumns at precision <= 112) against the exact product: containment,
+  // bits kept, and a negative control 2^-60 away from the exact value that must fall outside. Fibonacci data as
+  // above (fib_model.hpp); 6 anyons (all 5 columns) and 10 anyons (dimension 34, 3 columns). Then random letters:
+  // small entries (fixed path) and entries above the guard (arb fallback), both must contain the exact product.
+  Model m = zbtest::fibonacci_model();
+  BraidGenerators g(m, 0);
+  for (int n : {6, 10}) {
+    CAPTURE(n);
+    std::vector<int> anyons(static_cast<size_t>(n), 1);
+    size_t dim = g.space(anyons).dimension();
+    auto w = fibonacci_word(g, anyons, 300, 7);
+    Matrix start = Matrix::identity(m.field, dim).columns(n == 6 ? std::vector<size_t>{0, 1, 2, 3, 4} : std::vector<size_t>{0, 1, 2});
+    Matrix exact = word_product_naive(w, start);
+    acb_mat_t fx, ab;
+    acb_mat_init(fx, static_cast<long>(dim), static_cast<long>(start.cols()));
+    acb_mat_init(ab, static_cast<long>(dim), static_cast<long>(start.cols()));
+    word_product_ball(fx, w, start, 100, BallMethod::kColumns, 1);
+    word_product_ball(ab, w, start, 100, BallMethod::kColumnsArb, 1);
+    CHECK(contains_exact(fx, exact));
+    CHECK(contains_exact(ab, exact));
+    CHECK(ball_matrix_accuracy_bits(fx) >= 90);  // grid 2^-112, a few bits lost per doubling of the length
+    Matrix off = exact;
+    off(0, 0) += Scalar(m.field, Cyclo(m.field->cyclotomic(), 1, std::int64_t{1} << 60));
+    CHECK(!contains_exact(fx, off));  // negative control
+    acb_mat_clear(ab);
+    acb_mat_clear(fx);
+  }
+  FieldPtr f = field_with_roots(5, {"zeta + zeta^4"});
+  std::mt19937_64 rng(2718);
+  for (long scale : {16L, 1L}) {
+    CAPTURE(scale);
+    std::vector<Matrix> pool;
+    for (int q = 0; q < 3; ++q) pool.push_back(random_matrix(f, 4, 4, rng, 30).scaled(Scalar(f, Cyclo(f->cyclotomic(), 1, scale))));
+    auto w = random_word(pool, 40, rng);
+    Matrix start = random_matrix(f, 4, 2, rng, 0).scaled(Scalar(f, Cyclo(f->cyclotomic(), 1, scale)));
+    Matrix exact = word_product_naive(w, start);
+    acb_mat_t b;
+    acb_mat_init(b, 4, 2);
+    word_product_ball(b, w, start, 100, BallMethod::kColumns, 1);
+    CHECK(contains_exact(b, exact));
+    CHECK(!contains_exact(b, exact.scaled(Scalar(f, 2))));  // negative control
+    acb_mat_clear(b);
+  }
+}

@@ -61,7 +61,10 @@ Matrix word_product_naive(const std::vector<const Matrix*>& letters, const Matri
 /// kAuto (the default here): columns when the dimension exceeds 8 or every letter has nu <= 1 + 2^-10, else tree.
 void word_product_ball(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec);
 
-enum class BallMethod { kAuto, kTree, kColumns };
+/// kColumns at a working precision <= 112 first tries midpoints in 128-bit fixed point (value X * 2^-112, one
+/// truncation per real product, rigorous error recurrence; see word_product_ball.cpp) and falls back to arb
+/// balls when a magnitude guard fails; kColumnsArb always uses arb balls (measurements, tests).
+enum class BallMethod { kAuto, kTree, kColumns, kColumnsArb };
 
 struct BallOptions {
   /// Wanted absolute accuracy: every entry's radius <= 2^-target_bits (bits of accuracy kept).
