@@ -250,7 +250,10 @@ void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock
   y.k = x.k;
   y.n = x.n;
   y.masks = x.masks;
-  y.a.assign(static_cast<size_t>(x.masks * g.rows() * x.k * x.n), 0);  // rows no group writes stay zero
+  // Every destination (mask, row) block is written whole by its group; zero-fill only when some has no group.
+  const size_t size = static_cast<size_t>(x.masks * g.rows() * x.k * x.n);
+  if (g.groups().size() == static_cast<size_t>(x.masks * g.rows())) y.a.resize(size);
+  else y.a.assign(size, 0);
   y.bound = -1;
   const long k = x.k, n = x.n;
   if (x.bound >= 0) y.bound = x.bound * g.beta() * (1 + 1e-12);
