@@ -1,0 +1,205 @@
+// The checker's interval re-check: one error bound per column for unitary letters (fast, rigorous), the plain
+// ball product as the fallback, and their agreement with the exact leakage.
+#include <doctest/doctest.h>
+#include <fmt/format.h>
+
+#include <chrono>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <random>
+
+#include "support/helpers.hpp"
+#include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/cert/certify.hpp"
+#include "zetabraid/field/expression.hpp"
+#include "zetabraid/model/load.hpp"
+
+using namespace zb;
+
+namespace {
+
+std::string fib_file() { return zbtest::source_dir() + "/models/fibonacci.toml"; }
+
+std::string tmpdir() {
+  std::string p = fmt::format("/tmp/zb_verify_interval_{}", ::getpid());
+  std::filesystem::create_directories(p);
+  return p;
+}
+
+std::string slurp(const std::string& p) {
+  std::ifstream f(p);
+  return std::string((std::istreambuf_iterator<char>(f)), std::istreambuf_iterator<char>());
+}
+void spit(const std::string& p, const std::string& s) { std::ofstream(p) << s; }
+
+// signed letters drawn from gens with a fixed seed, in the canonical word syntax
+std::string random_letters(unsigned seed, const std::vector<int>& gens, size_t len) {
+  std::mt19937_64 rng(seed);
+  std::uniform_int_distribution<size_t> pick(0, gens.size() - 1);
+  std::uniform_int_distribution<int> sign(0, 1);
+  std::string s;
+  for (size_t i = 0; i < len; ++i) s += (i ? " " : "") + std::to_string(gens[pick(rng)] * (sign(rng) ? 1 : -1));
+  return s;
+}
+
+// certify on the Fibonacci model; the word goes through a file (long words)
+int certify(const std::string& dir, const std::string& anyons, const std::string& total, const std::string& keep,
+            const std::string& letters, const std::string& method, const std::string& out,
+            const std::string& extra = "") {
+  spit(dir + "/w.txt", letters + "\n");
+  return zbtest::run(zbtest::cli() + " certify --model " + fib_file() + " --anyons '" + anyons + "' --total " + total +
+                     " --keep '" + keep + "' --word-file " + dir + "/w.txt --method " + method + " --out " + out + " " +
+                     extra)
+      .status;
+}
+
+struct PlainPath {  // forces the checker's plain ball product while alive
+  PlainPath() { ::setenv("ZETABRAID_VERIFY_PLAIN", "1", 1); }
+  ~PlainPath() { ::unsetenv("ZETABRAID_VERIFY_PLAIN"); }
+};
+
+VerifyOutcome verify(const std::string& cert, bool plain = false) {
+  if (plain) {
+    PlainPath forced;
+    return verify_certificate(cert);
+  }
+  return verify_certificate(cert);
+}
+
+// the recomputed enclosure printed at the end of a summary: "...; enclosure [m +/- r])"
+std::string enclosure_of(const std::string& summary) {
+  size_t a = summary.rfind("enclosure ");
+  if (a == std::string::npos) return "";
+  a += 10;
+  size_t b = summary.rfind(')');
+  return b > a ? summary.substr(a, b - a) : "";
+}
+
+// rewrites the claim of an interval certificate around a given enclosure, with upper/lower/verdict derived
+// from it exactly as the format prescribes (so only the enclosure itself can be wrong)
+void claim_ball(const std::string& cert, const std::string& ball) {
+  auto j = nlohmann::ordered_json::parse(slurp(cert));
+  std::string up, lo;
+  bool pos = interval_bounds(ball, j["method"]["precision_bits"].get<long>(), &up, &lo);
+  j["claim"]["verdict"] = pos ? "leaks" : "leakage-bounded";
+  j["claim"]["leakage"]["ball"] = ball;
+  j["claim"]["leakage"]["upper"] = up;
+  j["claim"]["leakage"]["lower"] = pos ? nlohmann::ordered_json(lo) : nlohmann::ordered_json();
+  spit(cert, j.dump(2) + "\n");
+}
+
+}  // namespace
+
+TEST_CASE("interval re-check: a long certificate verifies quickly, tighter true claims too, false ones fail") {
+  if (!std::filesystem::exists(fib_file())) return;
+  const std::string d = tmpdir(), cert = d + "/long.json";
+  // s1 s2 braid anyons 1-3 among themselves and s4 s5 anyons 4-6, so each group keeps its total charge and the
+  // two-qubit space is kept exactly (common practice): the true leakage is 0
+  std::string letters = random_letters(2026, {1, 2, 4, 5}, 20000);
+  REQUIRE(certify(d, "t t t t t t", "1", "1-3:t,4-6:t", letters, "interval", cert) == 0);
+  auto t0 = std::chrono::steady_clock::now();
+  VerifyOutcome v = verify(cert);
+  double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  CAPTURE(v.reason);
+  CHECK(v.verified);
+  CHECK(v.summary.find("one error bound per column") != std::string::npos);
+  // the plain ball product needs ~20 s for this length on the development machine (2 shared cores)
+  CHECK(secs < 5.0);
+  // a much tighter claim is still true (leakage 0): confirmed after raising the precision
+  claim_ball(cert, "[+/- 1.0e-250]");
+  v = verify(cert);
+  CAPTURE(v.reason);
+  CHECK(v.verified);
+  // negative controls: a positive leakage, and a ball around a nonzero value, are false claims
+  claim_ball(cert, "[1.0e-10 +/- 1.0e-12]");
+  CHECK_FALSE(verify(cert).verified);
+  claim_ball(cert, "[2.0e-60 +/- 1.5e-60]");
+  CHECK_FALSE(verify(cert).verified);
+  std::filesystem::remove_all(d);
+}
+
+TEST_CASE("interval re-check rejects an upper bound below the true leakage of a leaking word (both paths)") {
+  if (!std::filesystem::exists(fib_file())) return;
+  const std::string d = tmpdir(), cert = d + "/leak.json";
+  // s3 braids anyon 3 out of group 1-3: a random word with s3 leaks (the exact method agrees on short ones)
+  std::string letters = random_letters(7, {1, 2, 3, 4, 5}, 3000);
+  REQUIRE(certify(d, "t t t t t t", "1", "1-3:t,4-6:t", letters, "interval", cert) == 1);
+  auto j = nlohmann::json::parse(slurp(cert));
+  REQUIRE(j["claim"]["verdict"] == "leaks");
+  std::string honest = j["claim"]["leakage"]["ball"];
+  arb_t x;
+  arb_init(x);
+  REQUIRE(arb_set_str(x, honest.c_str(), 128) == 0);
+  double leak = arf_get_d(arb_midref(x), ARF_RND_NEAR);
+  arb_clear(x);
+  REQUIRE(leak > 1e-3);
+  for (bool plain : {false, true}) {
+    CAPTURE(plain);
+    claim_ball(cert, honest);
+    VerifyOutcome v = verify(cert, plain);
+    CAPTURE(v.reason);
+    CHECK(v.verified);
+    CHECK(v.summary.find(plain ? "plain ball product" : "one error bound per column") != std::string::npos);
+    // upper = 0.75 x < x (verdict leaks), upper = x/2 (verdict leakage-bounded): false claims
+    claim_ball(cert, fmt::format("[{:.6e} +/- {:.6e}]", leak / 2, leak / 4));
+    v = verify(cert, plain);
+    CHECK_FALSE(v.verified);
+    CHECK(v.reason.find("cannot confirm leakage <=") != std::string::npos);
+    claim_ball(cert, fmt::format("[+/- {:.6e}]", leak / 2));
+    CHECK_FALSE(verify(cert, plain).verified);
+    // a lower bound above the truth is false as well
+    claim_ball(cert, fmt::format("[{:.6e} +/- {:.6e}]", leak * 1.5, leak * 0.4));
+    v = verify(cert, plain);
+    CHECK_FALSE(v.verified);
+    CHECK(v.reason.find("cannot confirm leakage >=") != std::string::npos);
+  }
+  std::filesystem::remove_all(d);
+}
+
+TEST_CASE("interval re-check: error-bound and plain paths agree on short words and contain the exact leakage") {
+  if (!std::filesystem::exists(fib_file())) return;
+  const std::string d = tmpdir();
+  Model m = load_model(fib_file());
+  struct Space {
+    std::string anyons, total, keep;
+    std::vector<int> gens;
+  };
+  // a coordinate kept space (two qubits in six anyons) and a non-coordinate one (charge of anyons 2-3)
+  for (const Space& s : {Space{"t t t t t t", "1", "1-3:t,4-6:t", {1, 2, 3, 4, 5}}, Space{"t t t t", "t", "2-3:1", {1, 2, 3}}})
+    for (unsigned seed = 1; seed <= 4; ++seed) {
+      std::string letters = random_letters(seed, s.gens, 6 * seed);
+      CAPTURE(s.keep);
+      CAPTURE(letters);
+      std::string ex = d + "/e.json", iv = d + "/i.json";
+      int st = certify(d, s.anyons, s.total, s.keep, letters, "exact", ex);
+      REQUIRE(st <= 1);
+      // the exact leakage (the exact method's own value, itself re-checked by verify and by GP elsewhere)
+      std::string exact = nlohmann::json::parse(slurp(ex))["claim"]["leakage"]["exact"];
+      acb_t e;
+      acb_init(e);
+      parse_expression(exact, m.field).ball(e, 512);
+      // a low producer precision (16 bits): the checker then works near 16 + 2 log2 L + 32 bits, so its
+      // enclosure is wide enough that a missing error term would show as an enclosure missing the exact value
+      REQUIRE(certify(d, s.anyons, s.total, s.keep, letters, "interval", iv, "--precision 16") == st);
+      std::string enc[2];
+      for (bool plain : {false, true}) {
+        CAPTURE(plain);
+        VerifyOutcome v = verify(iv, plain);
+        CAPTURE(v.reason);
+        REQUIRE(v.verified);
+        enc[plain] = enclosure_of(v.summary);
+        arb_t b;
+        arb_init(b);
+        REQUIRE(arb_set_str(b, enc[plain].c_str(), 256) == 0);
+        CAPTURE(enc[plain]);
+        CHECK(arb_contains(b, acb_realref(e)));
+        CHECK(mag_cmp_2exp_si(arb_radref(b), -20) < 0);  // and not vacuous
+        arb_clear(b);
+      }
+      CHECK(enc[0] != "");
+      acb_clear(e);
+    }
+  std::filesystem::remove_all(d);
+}
