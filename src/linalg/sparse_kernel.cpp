@@ -216,6 +216,34 @@ __attribute__((target("avx512f,avx512dq,avx512vl"))) void group_columns8_avx512(
   }
 }
 
+// Whole letter for N = 4 (no per-group pointer tables or calls): the same sums as group_columns4_avx512.
+__attribute__((target("avx512f,avx512dq,avx512vl"))) void letter4_avx512(std::int64_t* y, long yrows,
+                                                                         const std::int64_t* x, long xrows, long k,
+                                                                         const SparseLetter& g) {
+  const SparseLetter::Source* so = g.sources().data();
+  const std::int64_t* dense = g.dense().data();
+  for (const auto& gr : g.groups()) {
+    std::int64_t* dst = y + ((gr.to * yrows + gr.i) * k) * 4;
+    for (long j = 0; j < k; ++j) {
+      __m256i acc = _mm256_setzero_si256();
+      for (size_t q = gr.first; q < gr.first + gr.count; ++q) {
+        const std::int64_t* s = x + ((so[q].from * xrows + so[q].c) * k) * 4 + j;
+        const std::int64_t* m = dense + so[q].dense;
+        acc = _mm256_add_epi64(acc, _mm256_mullo_epi64(_mm256_loadu_si256(reinterpret_cast<const __m256i*>(m)), _mm256_set1_epi64x(s[0])));
+        acc = _mm256_add_epi64(acc, _mm256_mullo_epi64(_mm256_loadu_si256(reinterpret_cast<const __m256i*>(m + 4)), _mm256_set1_epi64x(s[k])));
+        acc = _mm256_add_epi64(acc, _mm256_mullo_epi64(_mm256_loadu_si256(reinterpret_cast<const __m256i*>(m + 8)), _mm256_set1_epi64x(s[2 * k])));
+        acc = _mm256_add_epi64(acc, _mm256_mullo_epi64(_mm256_loadu_si256(reinterpret_cast<const __m256i*>(m + 12)), _mm256_set1_epi64x(s[3 * k])));
+      }
+      alignas(32) std::int64_t out[4];
+      _mm256_store_si256(reinterpret_cast<__m256i*>(out), acc);
+      dst[j] = out[0];
+      dst[k + j] = out[1];
+      dst[2 * k + j] = out[2];
+      dst[3 * k + j] = out[3];
+    }
+  }
+}
+
 bool have_avx512() {
   static const bool yes = __builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512dq") &&
                           __builtin_cpu_supports("avx512vl");
@@ -257,6 +285,12 @@ void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock
   y.bound = -1;
   const long k = x.k, n = x.n;
   if (x.bound >= 0) y.bound = x.bound * g.beta() * (1 + 1e-12);
+#ifdef ZB_HAVE_AVX512_KERNEL
+  if (vector && n == 4) {
+    letter4_avx512(y.a.data(), y.rows, x.a.data(), x.rows, k, g);
+    return;
+  }
+#endif
   const std::int64_t* src[64];
   const std::int64_t* mat[64];
   for (const auto& gr : g.groups()) {
