@@ -1,6 +1,7 @@
 // Braid-word products on Fibonacci anyons: exact engine, interval engine (bits kept), one modular image and a
 // straightforward exact PARI/GP product, each as a time ratio to complex double in the same process.
 // Run through scripts/bench-words. Usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS]
+//                                        [--anyons N] [--length L] [--no-gp]
 //
 // Cases: 6 anyons, total charge 1 (the two-qubit encoding, dimension 5): the full 5x5 product.
 //        10 and 14 anyons, total charge 1 (dimensions 34 and 233): 4 columns (the first four basis vectors)
