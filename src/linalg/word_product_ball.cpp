@@ -365,8 +365,13 @@ void to_arf(arf_t out, i128 v) {
   fmpz_clear(z);
 }
 
-// Upper bound of a mag as a double (mag mantissas have 30 bits, so the conversion is exact up to the margin).
-double up(const mag_t m) { return mag_get_d(m) * (1 + 0x1p-50); }
+// Upper bound of a mag as a double (mag mantissas have 30 bits, so the conversion is exact up to the margin; a
+// nonzero mag below the double range is replaced by 2^-1000, one above it gives +inf, which the guards reject).
+double up(const mag_t m) {
+  if (mag_is_zero(m)) return 0;
+  if (mag_cmp_2exp_si(m, 1000) > 0) return HUGE_VAL;
+  return std::max(mag_get_d(m) * (1 + 0x1p-50), 0x1p-1000);
+}
 constexpr double kMargin = 1 + 0x1p-40;
 
 bool product_columns(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec) {
