@@ -295,7 +295,7 @@ void product_columns(acb_mat_t out, const std::vector<const Matrix*>& letters, c
 // 2-norm <= rho_G = 3 * 2^-kFix * sqrt(sum c_i^2). With E >= ||x* - x~||_2 (x* the exact column) and
 // N >= ||x~||_2 for every column:
 //     E' = nu_G E + delta_G N + rho_G,    N' = (nu_G + delta_G) N + rho_G,
-// evaluated in double with a relative margin (1 + 2^-40) covering the rounding of the few operations. The final
+// evaluated in Arb's mag_t arithmetic (every operation rounded upward; no floating point). The final
 // balls are the exact midpoints X * 2^-kFix with radius E on the real and imaginary parts. Overflow is excluded by
 // guards: every |G~ entry| <= 2^4, N <= 2^4, at most 16 nonzeros per row, so every partial sum of a real part
 // (at most 32 products, each of value <= 2^8) has value < 2^13, i.e. integer magnitude < 2^125.
@@ -365,62 +365,66 @@ void to_arf(arf_t out, i128 v) {
   fmpz_clear(z);
 }
 
-// Upper bound of a mag as a double (mag mantissas have 30 bits, so the conversion is exact up to the margin; a
-// nonzero mag below the double range is replaced by 2^-1000, one above it gives +inf, which the guards reject).
-double up(const mag_t m) {
-  if (mag_is_zero(m)) return 0;
-  if (mag_cmp_2exp_si(m, 1000) > 0) return HUGE_VAL;
-  return std::max(mag_get_d(m) * (1 + 0x1p-50), 0x1p-1000);
+// Upper-bound magnitudes (Arb's mag_t rounds every operation upward), RAII.
+struct Mag {
+  mag_t v;
+  Mag() { mag_init(v); }
+  Mag(const Mag& o) { mag_init(v); mag_set(v, o.v); }
+  Mag& operator=(const Mag& o) { mag_set(v, o.v); return *this; }
+  ~Mag() { mag_clear(v); }
+};
+
+// |entry error|^2 bound for a ball entry rounded to the grid: (rad_re + 2^-kFix)^2 + (rad_im + 2^-kFix)^2.
+void entry_err2(mag_t out, const acb_struct* x, const mag_t grid) {
+  Mag er, ei;
+  mag_add(er.v, arb_radref(acb_realref(x)), grid);
+  mag_add(ei.v, arb_radref(acb_imagref(x)), grid);
+  mag_mul(er.v, er.v, er.v);
+  mag_mul(ei.v, ei.v, ei.v);
+  mag_add(out, er.v, ei.v);
 }
-constexpr double kMargin = 1 + 0x1p-40;
 
 bool product_columns(acb_mat_t out, const std::vector<const Matrix*>& letters, const Matrix& start, long prec) {
   const long k = static_cast<long>(start.cols());
   const long bprec = std::max<long>(prec, kFix + 30);
-  mag_t m, t, lim;
-  mag_init(m);
-  mag_init(t);
-  mag_init(lim);
-  struct Guard {
-    mag_struct* a[3];
-    ~Guard() {
-      for (auto* x : a) mag_clear(x);
-    }
-  } guard{{m, t, lim}};
+  Mag m, t, lim, grid, e, nrm;
+  mag_set_ui_2exp_si(lim.v, 1, 4);
+  mag_set_ui_2exp_si(grid.v, 1, -kFix);
   // Start: midpoints rounded to the grid; E0 and N0 over all columns.
   BallMat sb(static_cast<long>(start.rows()), k);
   start.ball(sb.m, bprec);
   long rows = sb.rows();
   std::vector<Cx> acc(static_cast<size_t>(rows * k)), next;
-  double e = 0, nrm = 0;
-  mag_set_ui_2exp_si(lim, 1, 4);
   for (long j = 0; j < k; ++j) {
-    double ej = 0, nj = 0;
+    Mag ej, nj, err2, mx;
     for (long i = 0; i < rows; ++i) {
       const acb_struct* x = acb_mat_entry(sb.m, i, j);
-      acb_get_mag(m, x);
-      if (mag_cmp(m, lim) > 0) return false;
+      acb_get_mag(m.v, x);
+      if (mag_cmp(m.v, lim.v) > 0) return false;
       Cx& c = acc[static_cast<size_t>(i * k + j)];
       c.re = to_fix(arb_midref(acb_realref(x)));
       c.im = to_fix(arb_midref(acb_imagref(x)));
-      // |entry error| <= hypot(rad_re + 2^-kFix, rad_im + 2^-kFix); |x~ entry| <= |x| + that.
-      double er = up(arb_radref(acb_realref(x))) + 0x1p-112, ei = up(arb_radref(acb_imagref(x))) + 0x1p-112;
-      double err2 = (er * er + ei * ei) * kMargin;
-      double mx = up(m) + std::sqrt(err2) * kMargin;
-      ej += err2;
-      nj += mx * mx * kMargin;
+      // |x~ entry - x entry|^2 <= err2 and |x~ entry| <= |x| + sqrt(err2).
+      entry_err2(err2.v, x, grid.v);
+      mag_sqrt(mx.v, err2.v);
+      mag_add(mx.v, mx.v, m.v);
+      mag_add(ej.v, ej.v, err2.v);
+      mag_mul(mx.v, mx.v, mx.v);
+      mag_add(nj.v, nj.v, mx.v);
     }
-    e = std::max(e, std::sqrt(ej * kMargin) * kMargin);
-    nrm = std::max(nrm, std::sqrt(nj * kMargin) * kMargin);
+    mag_sqrt(ej.v, ej.v);
+    mag_sqrt(nj.v, nj.v);
+    mag_max(e.v, e.v, ej.v);
+    mag_max(nrm.v, nrm.v, nj.v);
   }
-  if (!(nrm <= 16)) return false;
+  if (mag_cmp(nrm.v, lim.v) > 0) return false;
   // Letters: grid midpoints, rows of nonzeros, nu, delta, rho.
   struct FixLetter {
     long rows = 0;
     std::vector<long> row_first;  // size rows + 1, into cols / vals
     std::vector<long> cols;
     std::vector<Cx> vals;
-    double nu = 0, delta = 0, rho = 0;
+    Mag nu, delta, rho;
   };
   std::vector<FixLetter> fl;
   std::vector<size_t> seq;
@@ -431,33 +435,37 @@ bool product_columns(acb_mat_t out, const std::vector<const Matrix*>& letters, c
       FixLetter f;
       f.rows = g->rows();
       std::vector<std::pair<long, long>> nz;
-      double d2 = 0, c2 = 0;
+      Mag d2, err2;
+      unsigned long c2 = 0;
       f.row_first.push_back(0);
       for (long i = 0; i < g->rows(); ++i) {
-        long c = 0;
+        unsigned long c = 0;
         for (long jj = 0; jj < g->cols(); ++jj) {
           const acb_struct* x = acb_mat_entry(g->m, i, jj);
           if (acb_is_zero(x)) continue;
           nz.emplace_back(i, jj);
-          acb_get_mag(m, x);
-          if (mag_cmp(m, lim) > 0) return false;
+          acb_get_mag(m.v, x);
+          if (mag_cmp(m.v, lim.v) > 0) return false;
           f.cols.push_back(jj);
           f.vals.push_back({to_fix(arb_midref(acb_realref(x))), to_fix(arb_midref(acb_imagref(x)))});
-          double er = up(arb_radref(acb_realref(x))) + 0x1p-112, ei = up(arb_radref(acb_imagref(x))) + 0x1p-112;
-          d2 += (er * er + ei * ei) * kMargin;
+          entry_err2(err2.v, x, grid.v);
+          mag_add(d2.v, d2.v, err2.v);
           ++c;
         }
         if (c > 16) return false;
-        c2 += static_cast<double>(c * c);
+        c2 += c * c;
         f.row_first.push_back(static_cast<long>(f.cols.size()));
       }
-      norm2_bound(m, g->m, nz, bprec);
-      f.nu = up(m);
-      f.delta = std::sqrt(d2 * kMargin) * kMargin;
-      f.rho = 3.0 * 0x1p-112 * std::sqrt(c2) * kMargin;
+      norm2_bound(f.nu.v, g->m, nz, bprec);
+      mag_sqrt(f.delta.v, d2.v);
+      mag_set_ui(f.rho.v, c2);
+      mag_sqrt(f.rho.v, f.rho.v);
+      mag_mul_ui(f.rho.v, f.rho.v, 3);
+      mag_mul_2exp_si(f.rho.v, f.rho.v, -kFix);
       fl.push_back(std::move(f));
     }
   }
+  Mag t1, t2;
   for (size_t l : seq) {
     const FixLetter& g = fl[l];
     next.assign(static_cast<size_t>(g.rows * k), Cx{});
@@ -471,21 +479,26 @@ bool product_columns(acb_mat_t out, const std::vector<const Matrix*>& letters, c
           y[j].im += mul(v.re, x[j].im) + mul(v.im, x[j].re);
         }
       }
-    e = (g.nu * e + g.delta * nrm + g.rho) * kMargin;
-    nrm = ((g.nu + g.delta) * nrm + g.rho) * kMargin;
-    if (!(nrm <= 16)) return false;  // also catches NaN
+    // E' = nu E + delta N + rho,  N' = (nu + delta) N + rho   (all in upward-rounded mag arithmetic)
+    mag_mul(t1.v, g.nu.v, e.v);
+    mag_mul(t2.v, g.delta.v, nrm.v);
+    mag_add(e.v, t1.v, t2.v);
+    mag_add(e.v, e.v, g.rho.v);
+    mag_add(t1.v, g.nu.v, g.delta.v);
+    mag_mul(nrm.v, t1.v, nrm.v);
+    mag_add(nrm.v, nrm.v, g.rho.v);
+    if (mag_cmp(nrm.v, lim.v) > 0) return false;
     acc.swap(next);
     rows = g.rows;
   }
-  mag_set_d(m, e);
   for (long i = 0; i < rows; ++i)
     for (long j = 0; j < k; ++j) {
       acb_struct* o = acb_mat_entry(out, i, j);
       const Cx& c = acc[static_cast<size_t>(i * k + j)];
       to_arf(arb_midref(acb_realref(o)), c.re);
       to_arf(arb_midref(acb_imagref(o)), c.im);
-      mag_set(arb_radref(acb_realref(o)), m);
-      mag_set(arb_radref(acb_imagref(o)), m);
+      mag_set(arb_radref(acb_realref(o)), e.v);
+      mag_set(arb_radref(acb_imagref(o)), e.v);
     }
   return true;
 }
