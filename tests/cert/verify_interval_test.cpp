@@ -3,7 +3,6 @@
 #include <doctest/doctest.h>
 #include <fmt/format.h>
 
-#include <chrono>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -99,14 +98,16 @@ TEST_CASE("interval re-check: a long certificate verifies quickly, tighter true 
   // two-qubit space is kept exactly (common practice): the true leakage is 0
   std::string letters = random_letters(2026, {1, 2, 4, 5}, 20000);
   REQUIRE(certify(d, "t t t t t t", "1", "1-3:t,4-6:t", letters, "interval", cert) == 0);
-  auto t0 = std::chrono::steady_clock::now();
   VerifyOutcome v = verify(cert);
-  double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   CAPTURE(v.reason);
+  CAPTURE(v.summary);
   CHECK(v.verified);
   CHECK(v.summary.find("one error bound per column") != std::string::npos);
-  // the plain ball product needs ~20 s for this length on the development machine (2 shared cores)
-  CHECK(secs < 5.0);
+  // cheap re-check: a working precision near the producer's (the plain ball product needs ~L + 64 = 20064 bits);
+  // speed itself is measured by benchmarks, not asserted here
+  size_t at = v.summary.find("re-checked at ");
+  REQUIRE(at != std::string::npos);
+  CHECK(std::stol(v.summary.substr(at + 14)) < 1000);
   // a much tighter claim is still true (leakage 0): confirmed after raising the precision
   claim_ball(cert, "[+/- 1.0e-250]");
   v = verify(cert);
