@@ -1,6 +1,8 @@
 // Exact word products: product tree over integer-polynomial matrices (see word_product.hpp).
 #include "zetabraid/linalg/word_product.hpp"
 
+#include "fork_join.hpp"
+
 #include <fmt/format.h>
 
 #include <exception>
@@ -159,28 +161,8 @@ class ExactTree {
       }
       size_t mid = lo + (hi - lo) / 2;
       PolyMatrix left, right;
-      if (depth < spawn_depth && hi - lo >= 32) {
-        std::exception_ptr err;
-        std::thread th([&] {
-          try {
-            left = node(lo, mid, depth + 1);
-          } catch (...) {
-            err = std::current_exception();
-          }
-          flint_cleanup();  // this thread's FLINT caches (values made here stay valid)
-        });
-        try {
-          right = node(mid, hi, depth + 1);
-        } catch (...) {
-          th.join();
-          throw;
-        }
-        th.join();
-        if (err) std::rethrow_exception(err);
-      } else {
-        left = node(lo, mid, depth + 1);
-        right = node(mid, hi, depth + 1);
-      }
+      detail::fork_join(depth < spawn_depth && hi - lo >= 32, [&] { left = node(lo, mid, depth + 1); },
+                        [&] { right = node(mid, hi, depth + 1); });
       PolyMatrix res = PolyMatrix::mul(right, left, t.ctx_);  // later letters act last (on the left)
       if (shared) {
         std::lock_guard<std::mutex> lock(mu);

@@ -14,6 +14,8 @@
 #include "zetabraid/error.hpp"
 #include "zetabraid/linalg/word_product.hpp"
 
+#include "fork_join.hpp"
+
 namespace zb {
 
 namespace {
@@ -97,28 +99,8 @@ class BallTree {
     if (hi - lo == 1) return leaf(runs_[lo]);
     size_t mid = lo + (hi - lo) / 2;
     BallPtr left, right;
-    if (depth < spawn_depth_ && hi - lo >= 32) {
-      std::exception_ptr err;
-      std::thread th([&] {
-        try {
-          left = node(lo, mid, depth + 1);
-        } catch (...) {
-          err = std::current_exception();
-        }
-        flint_cleanup();  // this thread's FLINT/Arb caches
-      });
-      try {
-        right = node(mid, hi, depth + 1);
-      } catch (...) {
-        th.join();
-        throw;
-      }
-      th.join();
-      if (err) std::rethrow_exception(err);
-    } else {
-      left = node(lo, mid, depth + 1);
-      right = node(mid, hi, depth + 1);
-    }
+    detail::fork_join(depth < spawn_depth_ && hi - lo >= 32, [&] { left = node(lo, mid, depth + 1); },
+                      [&] { right = node(mid, hi, depth + 1); });
     auto out = std::make_unique<BallMat>(right->rows(), left->cols());
     acb_mat_mul(out->m, right->m, left->m, prec_);
     return out;
