@@ -20,17 +20,10 @@ namespace {
 
 std::string fib_file() { return zbtest::source_dir() + "/models/fibonacci.toml"; }
 
-std::string tmpdir() {
-  std::string p = fmt::format("/tmp/zb_cert_test_{}", ::getpid());
-  std::filesystem::create_directories(p);
-  return p;
-}
+std::string tmpdir() { return zbtest::tmpdir("zb_cert_test"); }
 
-std::string slurp(const std::string& p) {
-  std::ifstream f(p);
-  return std::string((std::istreambuf_iterator<char>(f)), std::istreambuf_iterator<char>());
-}
-void spit(const std::string& p, const std::string& s) { std::ofstream(p) << s; }
+using zbtest::slurp;
+using zbtest::spit;
 
 std::string two_qubit(const std::string& word, const std::string& extra = "") {
   return zbtest::cli() + " certify --model " + fib_file() +

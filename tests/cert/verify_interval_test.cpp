@@ -21,17 +21,10 @@ namespace {
 
 std::string fib_file() { return zbtest::source_dir() + "/models/fibonacci.toml"; }
 
-std::string tmpdir() {
-  std::string p = fmt::format("/tmp/zb_verify_interval_{}", ::getpid());
-  std::filesystem::create_directories(p);
-  return p;
-}
+std::string tmpdir() { return zbtest::tmpdir("zb_verify_interval"); }
 
-std::string slurp(const std::string& p) {
-  std::ifstream f(p);
-  return std::string((std::istreambuf_iterator<char>(f)), std::istreambuf_iterator<char>());
-}
-void spit(const std::string& p, const std::string& s) { std::ofstream(p) << s; }
+using zbtest::slurp;
+using zbtest::spit;
 
 // signed letters drawn from gens with a fixed seed, in the canonical word syntax
 std::string random_letters(unsigned seed, const std::vector<int>& gens, size_t len) {

@@ -8,12 +8,7 @@
 #include "support/helpers.hpp"
 
 namespace {
-std::string slurp(const std::string& path) {
-  std::ifstream in(path);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
+using zbtest::slurp;
 }  // namespace
 
 TEST_CASE("bundled generated files are exactly what model make writes today") {

@@ -1,6 +1,9 @@
 // Shared test helpers: running the CLI and PARI/GP, seeded random elements.
 #pragma once
 #include <array>
+#include <filesystem>
+#include <fstream>
+#include <iterator>
 #include <sstream>
 #include <unistd.h>
 #include <cstdio>
@@ -32,6 +35,20 @@ inline RunResult run(const std::string& cmd, bool merge = false) {
 }
 
 inline std::string cli() { return ZB_CLI; }
+
+/// Whole file as a string; writing a string to a file.
+inline std::string slurp(const std::string& path) {
+  std::ifstream f(path);
+  return std::string((std::istreambuf_iterator<char>(f)), std::istreambuf_iterator<char>());
+}
+inline void spit(const std::string& path, const std::string& text) { std::ofstream(path) << text; }
+
+/// A per-process scratch folder /tmp/<prefix>_<pid>, created on demand.
+inline std::string tmpdir(const std::string& prefix) {
+  std::string p = "/tmp/" + prefix + "_" + std::to_string(::getpid());
+  std::filesystem::create_directories(p);
+  return p;
+}
 inline std::string source_dir() { return ZB_SOURCE_DIR; }
 inline bool have_gp() { return std::string(ZB_GP).size() > 0 && std::string(ZB_GP).find("NOTFOUND") == std::string::npos; }
 
