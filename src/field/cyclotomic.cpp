@@ -1,5 +1,7 @@
 #include "zetabraid/field/cyclotomic.hpp"
 
+#include <flint/fmpz_vec.h>
+
 #include <fmt/format.h>
 
 #include <functional>
@@ -252,28 +254,39 @@ std::string Cyclo::str() const {
 }
 
 void Cyclo::ball(acb_t out, long prec) const {
-  long wp = prec + 16 + 2 * static_cast<long>(FLINT_BIT_COUNT(static_cast<ulong>(k_->degree()) + 1));
+  if (is_zero()) {
+    acb_zero(out);
+    return;
+  }
   fmpq_poly_t p;
   fmpq_poly_init(p);
   get_poly(p);
+  Cyclo cj = conj();
+  const bool real = cj == *this, imaginary = !real && cj == -*this;  // exact
   acb_t z;
   acb_init(z);
   fmpq_t e;
   fmpq_init(e);
   fmpq_set_si(e, 2, k_->conductor());
-  arb_sin_cos_pi_fmpq(acb_imagref(z), acb_realref(z), e, wp);
-  acb_zero(out);
   fmpz_t c;
   fmpz_init(c);
-  for (long k = fmpq_poly_degree(p); k >= 0; --k) {  // Horner on the integer numerator
-    acb_mul(out, out, z, wp);
-    fmpq_poly_get_coeff_fmpz(c, p, k);
-    arb_add_fmpz(acb_realref(out), acb_realref(out), c, wp);
+  // Horner on the integer numerator. Large coefficients can cancel: the working precision starts above the
+  // coefficient size and doubles until the (nonzero) value has prec correct relative bits.
+  long wp = prec + 16 + 2 * static_cast<long>(FLINT_BIT_COUNT(static_cast<ulong>(k_->degree()) + 1)) +
+            std::labs(_fmpz_vec_max_bits(fmpq_poly_numref(p), fmpq_poly_length(p)));
+  for (;; wp *= 2) {
+    arb_sin_cos_pi_fmpq(acb_imagref(z), acb_realref(z), e, wp);
+    acb_zero(out);
+    for (long k = fmpq_poly_degree(p); k >= 0; --k) {
+      acb_mul(out, out, z, wp);
+      fmpq_poly_get_coeff_fmpz(c, p, k);
+      arb_add_fmpz(acb_realref(out), acb_realref(out), c, wp);
+    }
+    acb_div_fmpz(out, out, fmpq_poly_denref(p), wp);
+    if (real) arb_zero(acb_imagref(out));  // exact: a real element has imaginary part exactly 0
+    if (imaginary) arb_zero(acb_realref(out));
+    if (acb_rel_accuracy_bits(out) >= prec || wp > (1L << 24)) break;
   }
-  acb_div_fmpz(out, out, fmpq_poly_denref(p), wp);
-  Cyclo cj = conj();
-  if (cj == *this) arb_zero(acb_imagref(out));         // exact: a real element has imaginary part exactly 0
-  else if (cj == -*this) arb_zero(acb_realref(out));   // purely imaginary
   acb_set_round(out, out, prec);
   fmpz_clear(c);
   fmpq_clear(e);

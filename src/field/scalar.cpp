@@ -398,25 +398,32 @@ std::string Scalar::str(const std::function<std::string(int)>& radical_name) con
 }
 
 void Scalar::ball(acb_t out, long prec) const {
-  long wp = prec + 20;
   acb_zero(out);
+  if (t_.empty()) return;
+  const bool real = is_real(), imaginary = !real && conj() == -*this;  // exact
   acb_t c, r;
   acb_init(c);
   acb_init(r);
   arb_t sq;
   arb_init(sq);
-  for (const auto& [m, cf] : t_) {
-    cf.ball(c, wp);
-    for (int j = 0; j < 64; ++j)
-      if (m & (RadicalMask{1} << j)) {
-        f_->radicand(j).ball(r, wp);
-        arb_sqrt(sq, acb_realref(r), wp);
-        acb_mul_arb(c, c, sq, wp);
-      }
-    acb_add(out, out, c, wp);
+  // Terms of different radical masks can cancel: the working precision doubles until the (nonzero) sum has prec
+  // correct relative bits (each term is itself evaluated to wp relative bits).
+  for (long wp = prec + 20;; wp *= 2) {
+    acb_zero(out);
+    for (const auto& [m, cf] : t_) {
+      cf.ball(c, wp);
+      for (int j = 0; j < 64; ++j)
+        if (m & (RadicalMask{1} << j)) {
+          f_->radicand(j).ball(r, wp);
+          arb_sqrt(sq, acb_realref(r), wp);
+          acb_mul_arb(c, c, sq, wp);
+        }
+      acb_add(out, out, c, wp);
+    }
+    if (real) arb_zero(acb_imagref(out));
+    if (imaginary) arb_zero(acb_realref(out));
+    if (acb_rel_accuracy_bits(out) >= prec || wp > (1L << 24)) break;
   }
-  if (is_real()) arb_zero(acb_imagref(out));
-  else if (conj() == -*this) arb_zero(acb_realref(out));
   acb_set_round(out, out, prec);
   arb_clear(sq);
   acb_clear(r);
