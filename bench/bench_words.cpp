@@ -184,7 +184,7 @@ int main(int argc, char** argv) {
   }
   std::string gp = "gp";
   bool quick = false;
-  double gp_limit = 120;
+  double gp_limit = 200;
   int only_n = 0;         // --anyons N: only that case
   size_t only_len = 0;    // --length L: only that length
   bool no_gp = false;     // --no-gp: skip the PARI/GP runs
@@ -201,7 +201,7 @@ int main(int argc, char** argv) {
   int one = model.label_index("1"), tau = model.label_index("t");
   BraidGenerators gens(model, one);
   ModularPrime q = choose_primes(*model.field, 1, 62)[0];
-  std::vector<size_t> lengths = quick ? std::vector<size_t>{100, 1000} : std::vector<size_t>{100, 1000, 10000, 100000};
+  std::vector<size_t> lengths = quick ? std::vector<size_t>{100, 1000} : std::vector<size_t>{100, 1000, 10000, 30000, 100000};
   std::vector<int> counts = quick ? std::vector<int>{6, 10} : std::vector<int>{6, 10, 14};
   const double exact_budget = 300;
   if (only_n) counts = {only_n};
@@ -262,7 +262,7 @@ int main(int argc, char** argv) {
         sink = sink + static_cast<double>(im(0, 0));
       });
       std::string gps = "-", gpe = "-";
-      if (len <= 10000 && !no_gp) {
+      if (len <= 30000 && !no_gp) {
         int agrees = -1;
         double t_gp = gp_time(gp, *model.field, w, start, gp_limit, exact.get(), &agrees);
         if (agrees == 0) {
