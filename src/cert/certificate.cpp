@@ -53,13 +53,33 @@ ojson matrix_columns(const Matrix& m) { return matrix_rows(m.transpose()); }
 
 ojson or_null(const std::string& s) { return s.empty() ? ojson(nullptr) : ojson(s); }
 
+ojson prime_json(const ModularPrime& q) {
+  ojson roots = ojson::array();
+  for (ulong r : q.roots) roots.push_back(r);
+  return {{"p", q.p}, {"zeta", q.zeta}, {"roots", roots}};
+}
+
+// What backs the verdict (section 6 of docs/certificate-format.md).
+ojson proof_json(const CertifyResult& r) {
+  if (r.method == Method::kExact) return {{"kind", "exact-engine"}};
+  if (r.method == Method::kInterval) return {{"kind", "interval"}};
+  const ModularZeroResult& z = *r.modular;
+  if (z.nonzero)
+    return {{"kind", "nonzero-image"}, {"prime", prime_json(z.witness)}, {"row", z.row}, {"col", z.col},
+            {"value", z.value}};
+  ojson primes = ojson::array();
+  for (const auto& q : z.primes) primes.push_back(prime_json(q));
+  return {{"kind", "norm-bound"}, {"multiplier", z.multiplier}, {"norm_bound", z.norm_bound},
+          {"bound_bits", z.bound_bits}, {"primes", primes}};
+}
+
 }  // namespace
 
 std::string certificate_json(const CertificateInputs& in, const CertifyResult& r) {
   const Model& m = *in.model;
   ojson c;
   c["format"] = "zetabraid-certificate";
-  c["version"] = 1;
+  c["version"] = 2;
   c["model"] = {{"file", in.model_path}, {"sha256", sha256_file(in.model_path)}, {"name", m.name},
                 {"unitary", m.claims_unitary}};
   ojson rad = ojson::array();
@@ -87,6 +107,7 @@ std::string certificate_json(const CertificateInputs& in, const CertifyResult& r
   c["method"] = {{"name", method_name(r.method)}, {"precision_bits", r.precision}};
   c["hints"] = {{"image", r.image ? matrix_rows(*r.image) : ojson(nullptr)},
                 {"action", r.action ? matrix_rows(*r.action) : ojson(nullptr)}};
+  c["proof"] = proof_json(r);
   return c.dump(2) + "\n";
 }
 

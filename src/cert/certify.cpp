@@ -14,13 +14,15 @@ Method parse_method(const std::string& s) {
   if (s == "exact") return Method::kExact;
   if (s == "interval") return Method::kInterval;
   if (s == "auto") return Method::kAuto;
-  throw InputError(fmt::format("unknown method '{}' (expected exact, interval or auto)", s));
+  if (s == "modular") return Method::kModular;
+  throw InputError(fmt::format("unknown method '{}' (expected exact, interval, modular or auto)", s));
 }
 
 std::string method_name(Method m) {
   switch (m) {
     case Method::kExact: return "exact";
     case Method::kInterval: return "interval";
+    case Method::kModular: return "modular";
     default: return "auto";
   }
 }
@@ -301,6 +303,23 @@ void ball_leakage(arb_t out, const Subspace& keep, const acb_mat_t w, long prec)
 
 }  // namespace
 
+Matrix leak_post(const Subspace& keep) {
+  const FieldPtr& f = keep.basis.field();
+  const size_t dim = keep.basis.rows();
+  if (keep.coordinate) {
+    std::vector<bool> in(dim, false);
+    for (size_t c : keep.coordinates) in[c] = true;
+    Matrix p(f, dim - keep.coordinates.size(), dim);
+    size_t r = 0;
+    for (size_t i = 0; i < dim; ++i)
+      if (!in[i]) p(r++, i) = Scalar(f, 1);
+    return p;
+  }
+  const Matrix& v = keep.basis;
+  Matrix vh = v.adjoint();
+  return Matrix::identity(f, dim) - v * ((vh * v).inverse() * vh);
+}
+
 CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, const Subspace& keep, const Word& w,
                       const CertifyOptions& opt) {
   const Model& model = gens.model();
@@ -323,6 +342,15 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
     m = !res.unitary || w.size() * space.dimension() * keep.kept() <= opt.exact_budget ? Method::kExact
                                                                                        : Method::kInterval;
   res.method = m;
+  if (m == Method::kModular) {
+    Matrix post = leak_post(keep);
+    ModularZeroOptions mo;
+    mo.threads = opt.threads;
+    res.modular = modular_zero_test(letters, keep.basis, &post, nullptr, mo);
+    res.verdict = res.modular->zero ? "leak-free" : "leaks";
+    res.precision = mo.ball_precision;
+    return res;
+  }
   if (m == Method::kExact) {
     Matrix img = letters.empty() ? keep.basis : word_product_columns(letters, keep.basis);
     ExactLeak el = exact_leakage(keep, img, res.unitary);

@@ -164,7 +164,7 @@ if (#GROUPS,
     P = B^(-1) * Q * B * P);
   if (P * V != V, fail("a kept basis vector violates the charge constraints"));
   if (matrank(P) != KK, fail("the kept basis does not span the charge subspace")));
-if (METHOD == "exact",
+if (METHOD == "exact" || METHOD == "modular",
   if (leakfree && VERDICT != "leak-free", fail("the braid is leak-free, the claim says otherwise"));
   if (!leakfree && VERDICT != "leaks", fail("the braid leaks, the claim says otherwise")));
 if (UNITARY,

@@ -9,6 +9,7 @@
 // here), and falls back to a plain left-to-right ball product otherwise (docs/certificate-format.md, section 7).
 #include <fmt/format.h>
 
+#include <cmath>
 #include <cstdlib>
 #include <filesystem>
 #include <map>
@@ -497,6 +498,337 @@ void coordinate_leakage_bounded(arb_t leak, const acb_mat_t mid, mag_srcptr err,
   arb_clear(s);
   arb_clear(t);
 }
+// ---- Modular re-check (section 7): the checker's own letter tables (from the F-R-F action), its own reduction
+// mod p and propagation, its own conjugate enclosures. Shared with the producer: the field (Scalar::ball_at),
+// make_prime (validates a prime record), embeddings_up_to_conjugation and order_multiplier (linalg/modular.hpp).
+
+struct SparseEntry {
+  size_t row, col;
+  Scalar value;
+};
+struct LetterTable {
+  size_t rows = 0;
+  std::vector<SparseEntry> entries;
+};
+
+// The word's letters as sparse exact tables, in application order (each distinct letter tabulated once).
+std::vector<const LetterTable*> letter_tables(Action& act, const std::vector<int>& anyons, const Word& w,
+                                              std::map<std::pair<std::vector<int>, int>, LetterTable>* store) {
+  std::vector<const LetterTable*> out;
+  std::vector<int> labels = anyons;
+  for (int l : w.letters) {
+    auto key = std::make_pair(labels, l);
+    auto it = store->find(key);
+    if (it == store->end()) {
+      Matrix g = letter_matrix(act, labels, l);
+      LetterTable t{g.rows(), {}};
+      for (size_t c = 0; c < g.cols(); ++c)
+        for (size_t r = 0; r < g.rows(); ++r)
+          if (!g(r, c).is_zero()) t.entries.push_back({r, c, g(r, c)});
+      it = store->emplace(key, std::move(t)).first;
+    }
+    out.push_back(&it->second);
+    std::swap(labels[static_cast<size_t>(std::abs(l)) - 1], labels[static_cast<size_t>(std::abs(l))]);
+  }
+  if (labels != anyons) reject("the word does not return the anyons to their order");
+  return out;
+}
+
+// Image of x at (p, zeta -> w, sqrt(d_j) -> roots[j]); rejects when p divides a denominator.
+ulong mod_image(const Scalar& x, const ModularPrime& q, const nmod_t& m) {
+  ulong v = 0;
+  fmpq_poly_t p;
+  fmpq_poly_init(p);
+  for (const auto& [mask, c] : x.terms()) {
+    c.get_poly(p);
+    ulong den = fmpz_fdiv_ui(fmpq_poly_denref(p), m.n), t = 0;
+    if (den == 0) {
+      fmpq_poly_clear(p);
+      reject(fmt::format("prime {} divides a denominator of {}", q.p, c.str()));
+    }
+    for (long k = fmpq_poly_length(p) - 1; k >= 0; --k)
+      t = nmod_add(nmod_mul(t, q.zeta, m), fmpz_fdiv_ui(fmpq_poly_numref(p) + k, m.n), m);
+    t = nmod_mul(t, n_invmod(den, m.n), m);
+    for (size_t j = 0; j < q.roots.size(); ++j)
+      if (mask & (RadicalMask{1} << j)) t = nmod_mul(t, q.roots[j], m);
+    v = nmod_add(v, t, m);
+  }
+  fmpq_poly_clear(p);
+  return v;
+}
+
+// Image of X = post * rho(w) * start - offset (post, offset may be null), row-major rows(X) x cols(start).
+std::vector<ulong> mod_product(const std::vector<const LetterTable*>& w, const Matrix& start, const Matrix* post,
+                               const Matrix* offset, const ModularPrime& q) {
+  nmod_t m;
+  nmod_init(&m, q.p);
+  const size_t k = start.cols();
+  std::vector<ulong> acc(start.rows() * k), next;
+  for (size_t i = 0; i < start.rows(); ++i)
+    for (size_t j = 0; j < k; ++j) acc[i * k + j] = mod_image(start(i, j), q, m);
+  std::map<const LetterTable*, std::vector<ulong>> values;
+  for (const LetterTable* t : w) {
+    auto it = values.find(t);
+    if (it == values.end()) {
+      std::vector<ulong> v;
+      for (const auto& e : t->entries) v.push_back(mod_image(e.value, q, m));
+      it = values.emplace(t, std::move(v)).first;
+    }
+    next.assign(t->rows * k, 0);
+    for (size_t e = 0; e < t->entries.size(); ++e) {
+      const ulong a = it->second[e];
+      ulong* dst = &next[t->entries[e].row * k];
+      const ulong* src = &acc[t->entries[e].col * k];
+      for (size_t j = 0; j < k; ++j) dst[j] = nmod_add(dst[j], nmod_mul(a, src[j], m), m);
+    }
+    acc.swap(next);
+  }
+  if (post) {
+    next.assign(post->rows() * k, 0);
+    for (size_t i = 0; i < post->rows(); ++i)
+      for (size_t r = 0; r < post->cols(); ++r) {
+        if ((*post)(i, r).is_zero()) continue;
+        ulong a = mod_image((*post)(i, r), q, m);
+        for (size_t j = 0; j < k; ++j) next[i * k + j] = nmod_add(next[i * k + j], nmod_mul(a, acc[r * k + j], m), m);
+      }
+    acc.swap(next);
+  }
+  if (offset)
+    for (size_t i = 0; i < offset->rows(); ++i)
+      for (size_t j = 0; j < k; ++j) acc[i * k + j] = nmod_sub(acc[i * k + j], mod_image((*offset)(i, j), q, m), m);
+  return acc;
+}
+
+// Upper bound (mag) of s^[L:Q] * max over entries x of X of prod_sigma |sigma(x)|, s = product of the order
+// multipliers of the factors (every letter occurrence counted).
+void mod_norm_bound(mag_t out, const std::vector<const LetterTable*>& w, const Matrix& start, const Matrix* post,
+                    const Matrix* offset, long prec) {
+  const Field& f = *start.field();
+  const size_t k = start.cols();
+  const size_t rows = post ? post->rows() : (w.empty() ? start.rows() : w.back()->rows);
+  std::vector<mag_struct> entry(rows * k);
+  for (auto& e : entry) {
+    mag_init(&e);
+    mag_one(&e);
+  }
+  mag_t t;
+  mag_init(t);
+  acb_t b, o;
+  acb_init(b);
+  acb_init(o);
+  for (const Embedding& e : embeddings_up_to_conjugation(f)) {
+    std::vector<acb_struct> acc(start.rows() * k), next;
+    for (auto& z : acc) acb_init(&z);
+    for (size_t i = 0; i < start.rows(); ++i)
+      for (size_t j = 0; j < k; ++j) start(i, j).ball_at(&acc[i * k + j], prec, e.a, e.signs);
+    std::map<const LetterTable*, std::vector<acb_struct>> balls;
+    auto step = [&](size_t out_rows, const std::vector<SparseEntry>& entries, const acb_struct* vals) {
+      next.resize(out_rows * k);
+      for (auto& z : next) {
+        acb_init(&z);
+        acb_zero(&z);
+      }
+      for (size_t n = 0; n < entries.size(); ++n)
+        for (size_t j = 0; j < k; ++j)
+          acb_addmul(&next[entries[n].row * k + j], vals + n, &acc[entries[n].col * k + j], prec);
+      for (auto& z : acc) acb_clear(&z);
+      acc.swap(next);
+      next.clear();
+    };
+    for (const LetterTable* tb : w) {
+      auto it = balls.find(tb);
+      if (it == balls.end()) {
+        std::vector<acb_struct> v(tb->entries.size());
+        for (size_t n = 0; n < v.size(); ++n) {
+          acb_init(&v[n]);
+          tb->entries[n].value.ball_at(&v[n], prec, e.a, e.signs);
+        }
+        it = balls.emplace(tb, std::move(v)).first;
+      }
+      step(tb->rows, tb->entries, it->second.data());
+    }
+    if (post) {
+      std::vector<SparseEntry> pe;
+      for (size_t i = 0; i < post->rows(); ++i)
+        for (size_t r = 0; r < post->cols(); ++r)
+          if (!(*post)(i, r).is_zero()) pe.push_back({i, r, (*post)(i, r)});
+      std::vector<acb_struct> pv(pe.size());
+      for (size_t n = 0; n < pe.size(); ++n) {
+        acb_init(&pv[n]);
+        pe[n].value.ball_at(&pv[n], prec, e.a, e.signs);
+      }
+      step(post->rows(), pe, pv.data());
+      for (auto& z : pv) acb_clear(&z);
+    }
+    for (size_t i = 0; i < rows; ++i)
+      for (size_t j = 0; j < k; ++j) {
+        acb_set(b, &acc[i * k + j]);
+        if (offset) {
+          (*offset)(i, j).ball_at(o, prec, e.a, e.signs);
+          acb_sub(b, b, o, prec);
+        }
+        acb_get_mag(t, b);
+        for (int r = 0; r < e.weight; ++r) mag_mul(&entry[i * k + j], &entry[i * k + j], t);
+      }
+    for (auto& z : acc) acb_clear(&z);
+    for (auto& [tb, v] : balls)
+      for (auto& z : v) acb_clear(&z);
+  }
+  mag_zero(out);
+  for (auto& z : entry) {
+    mag_max(out, out, &z);
+    mag_clear(&z);
+  }
+  // multiplier
+  fmpz_t s, u;
+  fmpz_init(s);
+  fmpz_init(u);
+  order_multiplier(s, start);
+  for (const Matrix* mm : {post, offset})
+    if (mm) {
+      order_multiplier(u, *mm);
+      fmpz_mul(s, s, u);
+    }
+  std::map<const LetterTable*, ulong> count;
+  for (const LetterTable* tb : w) ++count[tb];
+  for (const auto& [tb, c] : count) {
+    fmpz_one(u);
+    for (const auto& en : tb->entries) {
+      Matrix one(start.field(), 1, 1);
+      one(0, 0) = en.value;
+      fmpz_t v;
+      fmpz_init(v);
+      order_multiplier(v, one);
+      fmpz_lcm(u, u, v);
+      fmpz_clear(v);
+    }
+    fmpz_pow_ui(u, u, c);
+    fmpz_mul(s, s, u);
+  }
+  mag_set_fmpz(t, s);
+  mag_pow_ui(t, t, static_cast<ulong>(f.cyclotomic()->degree()) << f.radicand_count());
+  mag_mul(out, out, t);
+  fmpz_clear(s);
+  fmpz_clear(u);
+  acb_clear(b);
+  acb_clear(o);
+  mag_clear(t);
+}
+
+ModularPrime prime_of(const json& j, const Field& f, const std::string& where) {
+  expect_keys(j, {"p", "zeta", "roots"}, where);
+  if (!j["p"].is_number_unsigned() || !j["zeta"].is_number_unsigned() || !j["roots"].is_array())
+    reject(fmt::format("{}: p, zeta must be non-negative integers and roots an array", where));
+  std::vector<ulong> roots;
+  for (const auto& r : j["roots"]) {
+    if (!r.is_number_unsigned()) reject(fmt::format("{}: roots must be non-negative integers", where));
+    roots.push_back(r.get<ulong>());
+  }
+  ulong p = j["p"].get<ulong>(), z = j["zeta"].get<ulong>();
+  for (ulong r : roots)
+    if (r >= p) reject(fmt::format("{}: a root is not reduced mod p", where));
+  if (z >= p) reject(fmt::format("{}: zeta is not reduced mod p", where));
+  try {
+    return make_prime(f, p, z, roots);
+  } catch (const InputError& e) {
+    reject(fmt::format("{}: {}", where, e.what()));
+  }
+}
+
+// Checks a proof that X = post * rho(w) * start - offset is zero ("norm-bound") or nonzero ("nonzero-image").
+// Returns a summary of what was checked.
+std::string check_modular_proof(const json& jp, const std::vector<const LetterTable*>& w, const Matrix& start,
+                                const Matrix* post, const Matrix* offset, bool claim_zero, long prec) {
+  const Field& f = *start.field();
+  std::string kind = str_of(jp["kind"], "proof.kind");
+  if (!claim_zero) {
+    if (kind != "nonzero-image") reject("a leaking verdict by modular images needs proof.kind \"nonzero-image\"");
+    expect_keys(jp, {"kind", "prime", "row", "col", "value"}, "proof");
+    ModularPrime q = prime_of(jp["prime"], f, "proof.prime");
+    size_t row = uint_of(jp["row"], "proof.row"), col = uint_of(jp["col"], "proof.col");
+    ulong value = jp["value"].is_number_unsigned() ? jp["value"].get<ulong>() : 0;
+    std::vector<ulong> im = mod_product(w, start, post, offset, q);
+    const size_t k = start.cols();
+    if (col >= k || row * k + col >= im.size()) reject("proof.row/col outside the leak block");
+    if (im[row * k + col] == 0) reject(fmt::format("the leak block's entry ({}, {}) vanishes mod {}", row, col, q.p));
+    if (im[row * k + col] != value) reject("proof.value is not the image of the stated entry");
+    return fmt::format("entry ({}, {}) is {} != 0 mod {}", row, col, value, q.p);
+  }
+  if (kind != "norm-bound") reject("a zero claim by modular images needs proof.kind \"norm-bound\"");
+  expect_keys(jp, {"kind", "multiplier", "norm_bound", "bound_bits", "primes"}, "proof");
+  if (!jp["primes"].is_array() || jp["primes"].empty()) reject("proof.primes must be a non-empty array");
+  std::set<ulong> seen;
+  fmpz_t prod;
+  fmpz_init(prod);
+  fmpz_one(prod);
+  for (size_t i = 0; i < jp["primes"].size(); ++i) {
+    ModularPrime q = prime_of(jp["primes"][i], f, fmt::format("proof.primes[{}]", i));
+    if (!seen.insert(q.p).second) {
+      fmpz_clear(prod);
+      reject(fmt::format("proof.primes: {} occurs twice", q.p));
+    }
+    std::vector<ulong> im = mod_product(w, start, post, offset, q);
+    for (ulong v : im)
+      if (v) {
+        fmpz_clear(prod);
+        reject(fmt::format("the image mod {} is not zero", q.p));
+      }
+    fmpz_mul_ui(prod, prod, q.p);
+  }
+  mag_t bound, pm;
+  mag_init(bound);
+  mag_init(pm);
+  mod_norm_bound(bound, w, start, post, offset, prec);
+  mag_set_fmpz_lower(pm, prod);
+  bool enough = mag_cmp(bound, pm) < 0;
+  std::string shown = mag_is_zero(bound) ? std::string("0")  // display only
+                                          : fmt::format("~2^{}", static_cast<long>(std::ceil(mag_get_d_log2_approx(bound))));
+  mag_clear(bound);
+  mag_clear(pm);
+  fmpz_clear(prod);
+  if (!enough) reject("the product of proof.primes does not exceed the checker's norm bound");
+  return fmt::format("images vanish at {} primes, product > norm bound {}", seen.size(), shown);
+}
+
+// hints.image == rho(w) V by modular images at the checker's own primes: every image of rho(w) V - hint must
+// vanish, at primes whose product exceeds the checker's norm bound. Returns a note for the summary.
+std::string modular_equal(const std::vector<const LetterTable*>& w, const Matrix& start, const Matrix& hint) {
+  const Field& f = *start.field();
+  mag_t bound, pm;
+  mag_init(bound);
+  mag_init(pm);
+  mod_norm_bound(bound, w, start, nullptr, &hint, 64);
+  fmpz_t prod;
+  fmpz_init(prod);
+  fmpz_one(prod);
+  size_t used = 0, want = 1;
+  std::vector<ModularPrime> primes;
+  for (;;) {
+    mag_set_fmpz_lower(pm, prod);
+    if (used > 0 && mag_cmp(bound, pm) < 0) break;
+    if (used >= primes.size()) {
+      want = std::max<size_t>(2 * want, static_cast<size_t>(std::max(0.0, mag_get_d_log2_approx(bound))) / 61 + 2);
+      if (want > 200000) {
+        fmpz_clear(prod);
+        reject("the norm bound needs more than 200000 primes (use the exact path)");
+      }
+      primes = choose_primes(f, want, 62);
+    }
+    const ModularPrime& q = primes[used++];
+    for (ulong v : mod_product(w, start, nullptr, &hint, q))
+      if (v) {
+        fmpz_clear(prod);
+        reject(fmt::format("hints.image is not rho(word) applied to the kept basis (differs mod {})", q.p));
+      }
+    fmpz_mul_ui(prod, prod, q.p);
+  }
+  long bits = static_cast<long>(std::ceil(mag_get_d_log2_approx(bound)));  // display only
+  mag_clear(bound);
+  mag_clear(pm);
+  fmpz_clear(prod);
+  return fmt::format("; image checked mod {} primes (norm bound ~2^{})", used, bits);
+}
+
 struct Ctx {
   Model model;
   std::vector<int> anyons;
@@ -506,12 +838,22 @@ struct Ctx {
   Word word;
 };
 
-VerifyOutcome check(const json& c, const std::string& cert_path, const std::string& model_override) {
-  expect_keys(c, {"format", "version", "model", "field", "space", "keep", "word", "claim", "method", "hints"},
-              "the certificate");
+VerifyOutcome check(const json& c, const std::string& cert_path, const std::string& model_override,
+                    const std::string& via) {
+  if (!c.is_object() || !c.contains("version") || !c["version"].is_number_integer() ||
+      (c["version"].get<long>() != 1 && c["version"].get<long>() != 2))
+    reject("unsupported version (this checker reads versions 1 and 2)");
+  const long version = c["version"].get<long>();
+  if (version == 1)
+    expect_keys(c, {"format", "version", "model", "field", "space", "keep", "word", "claim", "method", "hints"},
+                "the certificate");
+  else
+    expect_keys(c, {"format", "version", "model", "field", "space", "keep", "word", "claim", "method", "hints", "proof"},
+                "the certificate");
   if (c["format"] != "zetabraid-certificate") reject("format is not \"zetabraid-certificate\"");
-  if (!c["version"].is_number_integer() || c["version"].get<long>() != 1)
-    reject("unsupported version (this checker reads version 1)");
+  const json no_proof = json::object();
+  const json& jp = version >= 2 ? c["proof"] : no_proof;
+  if (version >= 2 && (!jp.is_object() || !jp.contains("kind"))) reject("proof must be an object with a kind");
   // model
   const json& jm = c["model"];
   expect_keys(jm, {"file", "sha256", "name", "unitary"}, "model");
@@ -644,13 +986,54 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
   Action act(m, x.total);
   const bool unitary = m.claims_unitary;
 
+  if (method == "modular") {
+    if (version < 2) reject("method \"modular\" needs certificate version 2");
+    if (verdict != "leak-free" && verdict != "leaks") reject("a modular certificate claims leak-free or leaks");
+    for (const char* key : {"exact", "ball", "upper", "lower"})
+      if (!jl[key].is_null()) reject("claim.leakage values must be null (modular method)");
+    if (!jh["image"].is_null() || !jh["action"].is_null()) reject("a modular certificate carries no hints");
+    if (prec < 32 || prec > 4096) reject("method.precision_bits out of range (32..4096)");
+    std::map<std::pair<std::vector<int>, int>, LetterTable> store;
+    auto tables = letter_tables(act, x.anyons, x.word, &store);
+    // The checker's own leak block: rows outside the kept coordinates, or 1 - V G^-1 V^*.
+    Matrix post(f, 0, 0);
+    std::vector<bool> rows = coordinate_rows(x.keep);
+    if (!rows.empty()) {
+      size_t out_rows = 0;
+      for (bool b : rows) out_rows += !b;
+      post = Matrix(f, out_rows, dim);
+      for (size_t i = 0, r = 0; i < dim; ++i)
+        if (!rows[i]) post(r++, i) = Scalar(f, 1);
+    } else {
+      Matrix vh = x.keep.adjoint();
+      post = Matrix::identity(f, dim) - x.keep * ((vh * x.keep).inverse() * vh);
+    }
+    std::string what = check_modular_proof(jp, tables, x.keep, &post, nullptr, verdict == "leak-free",
+                                           static_cast<long>(prec));
+    return {true, "", fmt::format("{} (modular; {} letters, kept {} of {}): {}", verdict, x.word.size(), k, dim, what)};
+  }
+  if (version >= 2) {
+    std::string want = method == "exact" ? "exact-engine" : "interval";
+    if (jp["kind"] != want) reject(fmt::format("proof.kind of a{} {} certificate must be \"{}\"",
+                                               method == "exact" ? "n" : "n", method, want));
+    expect_keys(jp, {"kind"}, "proof");
+  }
   if (method == "exact") {
     if (prec != 128) reject("method.precision_bits of an exact certificate must be 128 (the enclosure precision)");
     if (verdict != "leak-free" && verdict != "leaks") reject("an exact certificate claims leak-free or leaks");
     if (!jl["upper"].is_null() || !jl["lower"].is_null()) reject("claim.leakage upper/lower must be null (exact)");
-    Matrix w = exact_image(act, x.anyons, x.word, x.keep);
     Matrix hint = matrix_of_rows(jh["image"], dim, k, f, "hints.image");
-    if (hint != w) reject("hints.image is not rho(word) applied to the kept basis");
+    std::string via_note;
+    if (via == "modular") {
+      // hints.image == rho(w) V, proved by images of rho(w) V - hint at the checker's own primes (norm bound).
+      std::map<std::pair<std::vector<int>, int>, LetterTable> store;
+      auto tables = letter_tables(act, x.anyons, x.word, &store);
+      via_note = modular_equal(tables, x.keep, hint);
+    } else {
+      Matrix w = exact_image(act, x.anyons, x.word, x.keep);
+      if (hint != w) reject("hints.image is not rho(word) applied to the kept basis");
+    }
+    const Matrix& w = hint;
     std::vector<bool> rows = coordinate_rows(x.keep);
     Outside out = outside_part(x.keep, w, rows.empty() ? nullptr : &rows);
     bool leak_free = out.zero;
@@ -676,8 +1059,8 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
     } else if (!jh["action"].is_null()) {
       reject("hints.action must be null");
     }
-    return {true, "", fmt::format("{} ({}; {} letters, kept {} of {}), {}", verdict, "exact", x.word.size(), k, dim,
-                                  value)};
+    return {true, "", fmt::format("{} ({}; {} letters, kept {} of {}), {}{}", verdict, "exact", x.word.size(), k, dim,
+                                  value, via_note)};
   }
   if (method != "interval") reject("method.name must be \"exact\" or \"interval\"");
   if (!unitary) reject("an interval certificate needs a model that claims a unitary gauge");
@@ -834,7 +1217,9 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
 
 }  // namespace
 
-VerifyOutcome verify_certificate(const std::string& cert_path, const std::string& model_override) {
+VerifyOutcome verify_certificate(const std::string& cert_path, const std::string& model_override,
+                                 const std::string& via) {
+  if (via != "exact" && via != "modular") throw InputError("--via must be exact or modular");
   std::string text = read_file_bytes(cert_path);
   json c;
   try {
@@ -843,7 +1228,7 @@ VerifyOutcome verify_certificate(const std::string& cert_path, const std::string
     return {false, fmt::format("not a JSON document: {}", e.what()), ""};
   }
   try {
-    return check(c, cert_path, model_override);
+    return check(c, cert_path, model_override, via);
   } catch (const Reject& r) {
     return {false, r.why, ""};
   } catch (const std::exception& e) {

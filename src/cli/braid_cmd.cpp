@@ -297,6 +297,7 @@ void add_braid_commands(CLI::App& app, Action& action) {
     struct O {
       std::string model, anyons, total, keep, keep_file, word, word_file, method = "auto", out, gp;
       long precision = 0;
+      int threads = 1;
       bool json = false;
     };
     auto o = std::make_shared<O>();
@@ -307,7 +308,10 @@ void add_braid_commands(CLI::App& app, Action& action) {
     c->add_option("--keep-file", o->keep_file, "kept subspace as exact basis vectors (one per line, ',' separated)");
     c->add_option("--word", o->word, "braid word, e.g. \"s1 s2^-1 (s3 s2)^4\" or \"1 -2 3\"");
     c->add_option("--word-file", o->word_file, "file holding the braid word");
-    c->add_option("--method", o->method, "exact | interval | auto (exact unless the word is long)");
+    c->add_option("--method", o->method,
+                  "exact | interval | modular | auto (exact unless the word is long); modular decides leak-free / "
+                  "leaks by modular images with a norm bound, without the leakage value");
+    c->add_option("--threads", o->threads, "worker threads for the modular method (same result at any count)");
     c->add_option("--precision", o->precision, "interval working precision in bits (default: raised until decided)");
     c->add_option("--out", o->out, "write a certificate (JSON, docs/certificate-format.md)");
     c->add_option("--export-gp", o->gp, "write a self-contained PARI/GP script re-checking the claim");
@@ -320,6 +324,8 @@ void add_braid_commands(CLI::App& app, Action& action) {
         CertifyOptions opt;
         opt.method = parse_method(o->method);
         opt.precision = o->precision;
+        if (o->threads < 1 || o->threads > 64) throw InputError("--threads must be 1..64");
+        opt.threads = o->threads;
         Model m = load_model(o->model);
         std::vector<int> an = parse_anyons(m, o->anyons);
         int total = parse_label(m, o->total, "total charge");
@@ -358,6 +364,13 @@ void add_braid_commands(CLI::App& app, Action& action) {
                     {"action", r.action ? matrix_json(*r.action) : ojson(nullptr)},
                     {"precision_bits", r.precision}};
           if (r.method == Method::kInterval) out["accuracy_bits"] = r.accuracy_bits;
+          if (r.modular) {
+            const ModularZeroResult& z = *r.modular;
+            out["proof"] = z.nonzero ? ojson{{"kind", "nonzero-image"}, {"prime", z.witness.p}, {"row", z.row},
+                                             {"col", z.col}, {"value", z.value}}
+                                     : ojson{{"kind", "norm-bound"}, {"primes", z.primes.size()},
+                                             {"bound_bits", z.bound_bits}};
+          }
           out["certificate"] = o->out.empty() ? ojson(nullptr) : ojson(o->out);
           fmt::print("{}\n", out.dump());
         } else {
@@ -370,6 +383,16 @@ void add_braid_commands(CLI::App& app, Action& action) {
             fmt::print("leakage ||P_out rho(w) P_in||_F^2 = {}\n  enclosure: {}\n", r.leakage->str(), r.leakage_ball);
           else if (r.method == Method::kExact && !r.unitary)
             fmt::print("leakage value: needs a model that claims a unitary gauge (leak-free was decided exactly)\n");
+          if (r.modular) {
+            const ModularZeroResult& z = *r.modular;
+            if (z.nonzero)
+              fmt::print("proof: entry ({}, {}) of the leak block is {} != 0 mod p = {} (a ring map, so the entry is "
+                         "not 0)\n", z.row, z.col, z.value, z.witness.p);
+            else
+              fmt::print("proof: the leak block vanishes mod {} primes whose product exceeds the norm bound {} "
+                         "(a nonzero entry would have a larger norm)\n", z.primes.size(),
+                         z.norm_bound.rfind("0*", 0) == 0 ? std::string("0") : fmt::format("2^{}", z.bound_bits));
+          }
           if (r.method == Method::kInterval) {
             fmt::print("leakage <= {} (rigorous; enclosure {}, {} bits of accuracy)\n", r.leakage_upper,
                        r.leakage_ball, r.accuracy_bits);
@@ -392,16 +415,18 @@ void add_braid_commands(CLI::App& app, Action& action) {
   {
     auto* c = app.add_subcommand("verify", "re-check a certificate independently (exit 0 verified, 1 rejected)");
     struct O {
-      std::string cert, model;
+      std::string cert, model, via = "exact";
       bool json = false;
     };
     auto o = std::make_shared<O>();
     c->add_option("certificate", o->cert, "certificate file (JSON)")->required();
     c->add_option("--model", o->model, "model file to use instead of the path stored in the certificate");
+    c->add_option("--via", o->via, "exact | modular: how an exact certificate's image is re-checked (left-to-right "
+                                   "in the number field, or modular images with a norm bound)");
     c->add_flag("--json", o->json, "one JSON object {verified, reason, summary}");
     c->callback([o, &action] {
       action = [o] {
-        VerifyOutcome v = verify_certificate(o->cert, o->model);
+        VerifyOutcome v = verify_certificate(o->cert, o->model, o->via);
         if (o->json)
           fmt::print("{}\n", ojson{{"verified", v.verified}, {"reason", v.reason}, {"summary", v.summary}}.dump());
         else if (v.verified)

@@ -430,6 +430,47 @@ void Scalar::ball(acb_t out, long prec) const {
   acb_clear(c);
 }
 
+void Scalar::ball_at(acb_t out, long prec, long a, RadicalMask signs) const {
+  acb_zero(out);
+  if (t_.empty()) return;
+  const long n = static_cast<long>(f_->conductor());
+  if (((a % n) + n) % n == 1 % n && signs == 0) return ball(out, prec);
+  std::map<RadicalMask, Cyclo> img;  // sigma_a(c_S)
+  for (const auto& [m, cf] : t_) img.emplace(m, cf.galois(a));
+  std::vector<Cyclo> rad;
+  std::vector<int> sign;
+  for (int j = 0; j < f_->radicand_count(); ++j) {
+    rad.push_back(f_->radicand(j).galois(a));
+    sign.push_back(rad.back().real_sign());  // sigma_a(d_j) is real (d_j lies in the real subfield); exact
+  }
+  acb_t c, r;
+  acb_init(c);
+  acb_init(r);
+  arb_t sq;
+  arb_init(sq);
+  for (long wp = prec + 20;; wp *= 2) {
+    acb_zero(out);
+    for (const auto& [m, cf] : img) {
+      cf.ball(c, wp);
+      for (int j = 0; j < 64; ++j)
+        if (m & (RadicalMask{1} << j)) {
+          rad[static_cast<size_t>(j)].ball(r, wp);
+          arb_abs(sq, acb_realref(r));
+          arb_sqrt(sq, sq, wp);
+          if (sign[static_cast<size_t>(j)] < 0) acb_mul_onei(c, c);
+          acb_mul_arb(c, c, sq, wp);
+          if (signs & (RadicalMask{1} << j)) acb_neg(c, c);
+        }
+      acb_add(out, out, c, wp);
+    }
+    if (acb_rel_accuracy_bits(out) >= prec || wp > (1L << 24)) break;
+  }
+  acb_set_round(out, out, prec);
+  arb_clear(sq);
+  acb_clear(r);
+  acb_clear(c);
+}
+
 std::string ball_str(const arb_t b, long digits) {
   char* s = arb_get_str(b, digits, 0);
   std::string out(s);

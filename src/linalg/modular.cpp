@@ -2,8 +2,10 @@
 
 #include <fmt/format.h>
 
+#include <thread>
 #include <unordered_map>
 
+#include "fork_join.hpp"
 #include "zetabraid/error.hpp"
 
 namespace zb {
@@ -202,6 +204,291 @@ ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const M
 ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const ModularPrime& q) {
   if (letters.empty()) throw MathError("empty word: no matrix shape to return");
   return word_product_mod(letters, Matrix::identity(letters.front()->field(), letters.front()->cols()), q);
+}
+
+void order_multiplier(fmpz_t s, const Matrix& m) {
+  const Field& f = *m.field();
+  std::vector<fmpz_t> b(static_cast<size_t>(f.radicand_count()));
+  fmpq_poly_t p;
+  fmpq_poly_init(p);
+  for (int j = 0; j < f.radicand_count(); ++j) {
+    fmpz_init(b[static_cast<size_t>(j)]);
+    f.radicand(j).get_poly(p);
+    fmpz_set(b[static_cast<size_t>(j)], fmpq_poly_denref(p));
+  }
+  fmpz_t t;
+  fmpz_init(t);
+  fmpz_one(s);
+  for (size_t i = 0; i < m.rows(); ++i)
+    for (size_t j = 0; j < m.cols(); ++j)
+      for (const auto& [mask, c] : m(i, j).terms()) {
+        c.get_poly(p);
+        fmpz_set(t, fmpq_poly_denref(p));
+        for (int r = 0; r < f.radicand_count(); ++r)
+          if (mask & (RadicalMask{1} << r)) fmpz_mul(t, t, b[static_cast<size_t>(r)]);
+        fmpz_lcm(s, s, t);
+      }
+  fmpz_clear(t);
+  fmpq_poly_clear(p);
+  for (auto& x : b) fmpz_clear(x);
+}
+
+std::vector<Embedding> embeddings_up_to_conjugation(const Field& f) {
+  const long n = static_cast<long>(f.conductor());
+  const RadicalMask signs = RadicalMask{1} << f.radicand_count();
+  std::vector<Embedding> out;
+  for (long a = 1; a < std::max(n, 2L); ++a) {
+    if (n_gcd(static_cast<ulong>(a), static_cast<ulong>(n)) != 1) continue;
+    int weight = 1;
+    if (n > 2) {  // zeta -> zeta^a and zeta -> zeta^-a are complex conjugate embeddings of K (and of L over them)
+      if (a > n - a) continue;
+      weight = 2;
+    }
+    for (RadicalMask e = 0; e < signs; ++e) out.push_back({a, e, weight});
+  }
+  return out;
+}
+
+namespace {
+
+// Image of X = post * (word * start) - offset at q; false when p divides a denominator.
+bool image_of(ModularImage* out, const std::vector<const Matrix*>& letters, const Matrix& start, const Matrix* post,
+              const Matrix* offset, const ModularPrime& q) {
+  try {
+    ModularImage w = word_product_mod(letters, start, q);
+    if (post) w = reduce_matrix(*post, q) * w;
+    if (offset) {
+      ModularImage o = reduce_matrix(*offset, q);
+      const nmod_t& m = w.modulus();
+      for (size_t i = 0; i < w.rows(); ++i)
+        for (size_t j = 0; j < w.cols(); ++j) w(i, j) = nmod_sub(w(i, j), o(i, j), m);
+    }
+    *out = std::move(w);
+    return true;
+  } catch (const MathError&) {
+    return false;
+  }
+}
+
+// Upper bound B (mag) of prod over all embeddings of |sigma(x)|, maximised over the entries x of X.
+void conjugate_norm_bound(mag_t out, const std::vector<const Matrix*>& letters, const Matrix& start, const Matrix* post,
+                          const Matrix* offset, long prec) {
+  const Field& f = *start.field();
+  const size_t k = start.cols();
+  const size_t rows = post ? post->rows() : (letters.empty() ? start.rows() : letters.back()->rows());
+  std::vector<mag_struct> entry(rows * k);
+  for (auto& e : entry) {
+    mag_init(&e);
+    mag_one(&e);
+  }
+  struct Entry {
+    size_t i, j;
+    acb_struct v;
+  };
+  mag_t t;
+  mag_init(t);
+  for (const Embedding& e : embeddings_up_to_conjugation(f)) {
+    auto ball_of = [&](acb_t b, const Scalar& x) { x.ball_at(b, prec, e.a, e.signs); };
+    std::unordered_map<const Matrix*, std::vector<Entry>> tab;
+    auto table = [&](const Matrix* m) -> const std::vector<Entry>& {
+      auto it = tab.find(m);
+      if (it != tab.end()) return it->second;
+      std::vector<Entry> v;
+      for (size_t i = 0; i < m->rows(); ++i)
+        for (size_t j = 0; j < m->cols(); ++j)
+          if (!(*m)(i, j).is_zero()) {
+            v.push_back({i, j, {}});
+            acb_init(&v.back().v);
+            ball_of(&v.back().v, (*m)(i, j));
+          }
+      return tab.emplace(m, std::move(v)).first->second;
+    };
+    std::vector<acb_struct> acc(start.rows() * k), next;
+    for (auto& x : acc) acb_init(&x);
+    for (size_t i = 0; i < start.rows(); ++i)
+      for (size_t j = 0; j < k; ++j) ball_of(&acc[i * k + j], start(i, j));
+    auto apply = [&](const Matrix* m) {
+      const std::vector<Entry>& g = table(m);
+      next.resize(m->rows() * k);
+      for (auto& x : next) {
+        acb_init(&x);
+        acb_zero(&x);
+      }
+      for (const Entry& en : g)
+        for (size_t j = 0; j < k; ++j) acb_addmul(&next[en.i * k + j], &en.v, &acc[en.j * k + j], prec);
+      for (auto& x : acc) acb_clear(&x);
+      acc.swap(next);
+      next.clear();
+    };
+    for (const Matrix* l : letters) apply(l);
+    if (post) apply(post);
+    acb_t o;
+    acb_init(o);
+    for (size_t i = 0; i < rows; ++i)
+      for (size_t j = 0; j < k; ++j) {
+        acb_struct* x = &acc[i * k + j];
+        if (offset) {
+          ball_of(o, (*offset)(i, j));
+          acb_sub(x, x, o, prec);
+        }
+        acb_get_mag(t, x);
+        for (int w = 0; w < e.weight; ++w) mag_mul(&entry[i * k + j], &entry[i * k + j], t);
+      }
+    acb_clear(o);
+    for (auto& x : acc) acb_clear(&x);
+    for (auto& [m, v] : tab)
+      for (auto& en : v) acb_clear(&en.v);
+  }
+  mag_zero(out);
+  for (auto& x : entry) {
+    mag_max(out, out, &x);
+    mag_clear(&x);
+  }
+  mag_clear(t);
+}
+
+// First nonzero entry of an image, if any.
+bool first_nonzero(const ModularImage& im, size_t* r, size_t* c) {
+  for (size_t i = 0; i < im.rows(); ++i)
+    for (size_t j = 0; j < im.cols(); ++j)
+      if (im(i, j)) {
+        *r = i;
+        *c = j;
+        return true;
+      }
+  return false;
+}
+
+}  // namespace
+
+ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, const Matrix& start, const Matrix* post,
+                                    const Matrix* offset, const ModularZeroOptions& opt) {
+  const Field& f = *start.field();
+  {
+    size_t r = start.rows();
+    for (size_t i = 0; i < letters.size(); ++i) {
+      if (!letters[i] || letters[i]->cols() != r) throw MathError(fmt::format("letter {} does not compose", i + 1));
+      r = letters[i]->rows();
+    }
+    if (post && post->cols() != r) throw MathError("post matrix does not compose with the word");
+    size_t rows = post ? post->rows() : r;
+    if (offset && (offset->rows() != rows || offset->cols() != start.cols()))
+      throw MathError("offset matrix does not match the product's shape");
+  }
+  ModularZeroResult res;
+  // Primes are taken in choose_primes order; a prime dividing a denominator is skipped (never at 62 bits for
+  // the bundled models, but possible in principle).
+  std::vector<ModularPrime> pool;
+  size_t next = 0;
+  auto run = [&](size_t count) -> bool {  // images at the next `count` usable primes; true when nonzero found
+    while (count > 0) {
+      if (pool.size() < next + count) pool = choose_primes(f, next + count + 8, 62);
+      size_t batch = count;
+      std::vector<ModularImage> im(batch, ModularImage(2, 0, 0));
+      std::vector<char> ok(batch, 0);
+      auto work = [&](size_t lo, size_t hi) {
+        for (size_t b = lo; b < hi; ++b) ok[b] = image_of(&im[b], letters, start, post, offset, pool[next + b]);
+      };
+      int th = std::max(1, std::min<int>(opt.threads, static_cast<int>(batch)));
+      if (th > 1)
+        detail::fork_join(true, [&] { work(0, batch / 2); }, [&] { work(batch / 2, batch); });
+      else
+        work(0, batch);
+      size_t used = 0;
+      for (size_t b = 0; b < batch; ++b) {
+        if (!ok[b]) continue;
+        ++used;
+        size_t r, c;
+        if (first_nonzero(im[b], &r, &c)) {
+          res.nonzero = true;
+          res.witness = pool[next + b];
+          res.row = r;
+          res.col = c;
+          res.value = im[b](r, c);
+          return true;
+        }
+        res.primes.push_back(pool[next + b]);
+      }
+      next += batch;
+      count -= used;
+    }
+    return false;
+  };
+  if (run(std::max<size_t>(1, opt.filter_primes))) return res;
+  // Norm bound: B = s^[L:Q] * max over entries of prod_sigma |sigma(x)|.
+  fmpz_t s, t;
+  fmpz_init(s);
+  fmpz_init(t);
+  order_multiplier(s, start);
+  for (const Matrix* m : {post, offset})
+    if (m) {
+      order_multiplier(t, *m);
+      fmpz_mul(s, s, t);
+    }
+  {
+    std::unordered_map<const Matrix*, ulong> count;  // s_L^(occurrences) for each distinct letter
+    for (const Matrix* l : letters) ++count[l];
+    for (const auto& [l, c] : count) {
+      order_multiplier(t, *l);
+      fmpz_pow_ui(t, t, c);
+      fmpz_mul(s, s, t);
+    }
+  }
+  char* sd = fmpz_get_str(nullptr, 10, s);
+  res.multiplier = sd;
+  flint_free(sd);
+  mag_t bound, sm;
+  mag_init(bound);
+  mag_init(sm);
+  conjugate_norm_bound(bound, letters, start, post, offset, opt.ball_precision);
+  const ulong degree = static_cast<ulong>(f.cyclotomic()->degree()) << f.radicand_count();
+  mag_set_fmpz(sm, s);
+  mag_pow_ui(sm, sm, degree);
+  mag_mul(bound, bound, sm);
+  arf_t x;
+  arf_init(x);
+  arf_set_mag(x, bound);
+  fmpz_t man, ex;
+  fmpz_init(man);
+  fmpz_init(ex);
+  arf_get_fmpz_2exp(man, ex, x);
+  res.bound_bits = arf_is_zero(x) ? 0 : static_cast<long>(fmpz_bits(man)) + fmpz_get_si(ex);
+  {
+    char* a = fmpz_get_str(nullptr, 10, man);
+    char* b = fmpz_get_str(nullptr, 10, ex);
+    res.norm_bound = fmt::format("{}*2^{}", a, b);
+    flint_free(a);
+    flint_free(b);
+  }
+  fmpz_clear(man);
+  fmpz_clear(ex);
+  arf_clear(x);
+  // Primes are >= 2^61: each adds at least 61 bits to the product.
+  auto product_exceeds = [&]() {
+    fmpz_one(t);
+    for (const ModularPrime& q : res.primes) fmpz_mul_ui(t, t, q.p);
+    mag_t pm;
+    mag_init(pm);
+    mag_set_fmpz_lower(pm, t);
+    bool ok = mag_cmp(bound, pm) < 0;
+    mag_clear(pm);
+    return ok;
+  };
+  while (!product_exceeds()) {
+    size_t have_bits = 61 * res.primes.size();
+    size_t need = res.bound_bits > static_cast<long>(have_bits) ? (static_cast<size_t>(res.bound_bits) - have_bits) / 61 + 1 : 1;
+    if (res.primes.size() + need > opt.max_primes)
+      throw ResourceError(fmt::format("the norm bound has {} bits: proving zero by modular images needs about {} "
+                                      "primes (limit {}); use the exact engine instead",
+                                      res.bound_bits, res.primes.size() + need, opt.max_primes));
+    if (run(need)) break;
+  }
+  res.zero = !res.nonzero;
+  mag_clear(bound);
+  mag_clear(sm);
+  fmpz_clear(s);
+  fmpz_clear(t);
+  return res;
 }
 
 }  // namespace zb

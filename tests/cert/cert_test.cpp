@@ -308,7 +308,9 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
         {"keep", [](auto& x) { x["keep"]["spec"] = "1-3:1,4-6:1"; }},
         {"sha", [](auto& x) { x["model"]["sha256"] = std::string(64, '0'); }},
         {"extra key", [](auto& x) { x["note"] = "hello"; }},
-        {"version", [](auto& x) { x["version"] = 2; }},
+        {"version", [](auto& x) { x["version"] = 3; }},
+        {"version 1 with a proof", [](auto& x) { x["version"] = 1; }},
+        {"proof kind", [](auto& x) { x["proof"]["kind"] = x["proof"]["kind"] == "norm-bound" ? "interval" : "norm-bound"; }},
         {"method", [](auto& x) { x["method"]["name"] = x["method"]["name"] == "exact" ? "interval" : "exact"; }},
         {"numbers", [](auto& x) {
            auto& l = x["claim"]["leakage"];

@@ -36,10 +36,14 @@ struct VerifyOutcome {
 };
 
 /// Re-checks a certificate through code that shares no product routine with the producer: its own generator
-/// action (from F and R directly), its own straightforward exact product and ball product, its own leakage
-/// formula. `model_override` replaces the model path stored in the certificate. Never throws for bad content
-/// (returns a rejection); throws InputError only when the certificate file itself is unreadable.
-VerifyOutcome verify_certificate(const std::string& cert_path, const std::string& model_override = "");
+/// action (from F and R directly), its own straightforward exact product, ball product and modular images, its
+/// own leakage formula. `model_override` replaces the model path stored in the certificate. `via` picks how
+/// an exact certificate's image is re-checked: "exact" (left-to-right in the number field) or "modular"
+/// (images at the checker's own primes with a norm bound); modular certificates are always re-checked by
+/// images. Never throws for bad content (returns a rejection); throws InputError only when the certificate file
+/// itself is unreadable or `via` is unknown.
+VerifyOutcome verify_certificate(const std::string& cert_path, const std::string& model_override = "",
+                                 const std::string& via = "exact");
 
 /// A self-contained PARI/GP script that rebuilds the generators from the model's F- and R-symbols, multiplies
 /// the word, and checks the claim exactly. Prints "zetabraid-gp: verified" or "zetabraid-gp: REJECTED ...".

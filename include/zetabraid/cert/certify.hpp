@@ -14,11 +14,15 @@
 #include <string>
 
 #include "zetabraid/braid/subspace.hpp"
+#include "zetabraid/linalg/modular.hpp"
 
 namespace zb {
 
-enum class Method { kExact, kInterval, kAuto };
-Method parse_method(const std::string& s);  ///< "exact", "interval", "auto"; InputError otherwise
+// Methods: exact (exact engine: verdict, exact leakage, induced action); modular (the leak block
+// X = (1 - P) rho(w) V by modular images alone: "leaks" from one nonzero image, "leak-free" from images vanishing
+// at primes whose product exceeds a norm bound, linalg/modular.hpp; no leakage value); interval (Arb balls).
+enum class Method { kExact, kInterval, kAuto, kModular };
+Method parse_method(const std::string& s);  ///< "exact", "interval", "modular", "auto"; InputError otherwise
 std::string method_name(Method m);
 
 struct CertifyOptions {
@@ -27,6 +31,7 @@ struct CertifyOptions {
   long target_bits = 64;           ///< automatic precision: raise until the leakage radius is below 2^-target_bits
   long max_precision = 1 << 16;    ///< cap of the automatic precision
   size_t exact_budget = 2'000'000; ///< auto: exact when letters * dimension * kept <= budget, else interval
+  int threads = 1;                 ///< modular method: primes in parallel (same result at any count)
 };
 
 struct CertifyResult {
@@ -42,7 +47,12 @@ struct CertifyResult {
   long accuracy_bits = 0;          ///< -log2 of the leakage enclosure radius (interval)
   std::optional<Matrix> image;     ///< W = rho(w) V (exact method)
   std::optional<Matrix> action;    ///< induced action on K in the basis V (exact method; see above)
+  std::optional<ModularZeroResult> modular;  ///< modular method: the witness or the primes and norm bound
 };
+
+/// The leak block's left factor: X = post * rho(w) V vanishes exactly when rho(w) K lies in K. For a coordinate
+/// subspace the rows outside the kept coordinates (a 0/1 selection); otherwise 1 - V G^-1 V^* (G = V^* V).
+Matrix leak_post(const Subspace& keep);
 
 /// Checks that the word returns the anyons to their order; the kept subspace lives in V(anyons; total).
 CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, const Subspace& keep, const Word& w,

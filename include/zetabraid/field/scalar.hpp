@@ -121,6 +121,12 @@ class Scalar {
   /// The same text with sqrt(d_{j+1}) written as radical_name(j) (e.g. a named constant).
   std::string str(const std::function<std::string(int)>& radical_name) const;
   void ball(acb_t out, long prec) const;
+  /// Enclosure under another embedding of L into C: zeta |-> exp(2*pi*i*a/N) (gcd(a, N) = 1) and
+  /// sqrt(d_j) |-> (-1)^(bit j of signs) * r_j, r_j the principal square root of the real number sigma_a(d_j)
+  /// (positive, or i times a positive number; the sign of sigma_a(d_j) is decided exactly). As (a, signs) run
+  /// over (Z/N)^* x {0..2^m-1} this gives each of the [L:Q] embeddings once. ball_at(out, prec, 1, 0) == ball.
+  /// Accuracy: prec relative bits for nonzero values (as ball).
+  void ball_at(acb_t out, long prec, long a, RadicalMask signs) const;
 
  private:
   void check_same(const Scalar& o) const;

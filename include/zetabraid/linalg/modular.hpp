@@ -71,4 +71,52 @@ ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const M
 /// Image of L_n ... L_1 (as word_product).
 ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const ModularPrime& q);
 
+// ---- Proofs of zero from modular images (norm bound) ----
+//
+// Let R = Z[zeta][b_1 sqrt(d_1), ..., b_m sqrt(d_m)] (b_j the denominator of radicand d_j): an order of L, free
+// over Z with basis zeta^a prod_{j in S} b_j sqrt(d_j), so every ModularPrime q defines a ring map R -> F_p whose
+// kernel I_q has index p. For x in R and distinct primes p_1..p_r with x in every I_q: x R lies in each I_q, so
+// every p_i divides [R : xR] = |N_{L/Q}(x)|, hence x = 0 or |N(x)| >= p_1 ... p_r. And |N(x)| is the product of
+// |sigma(x)| over the [L:Q] embeddings sigma (Scalar::ball_at). So: if the images of s*x vanish at primes whose
+// product exceeds a rigorous upper bound of prod_sigma |sigma(s*x)|, then x = 0 (s: an integer with s*x in R).
+
+/// A positive integer s with s*x in R for every entry x of m: lcm over the terms c_S prod_{j in S} sqrt(d_j) of
+/// den(c_S) * prod_{j in S} b_j.
+void order_multiplier(fmpz_t s, const Matrix& m);
+
+/// One embedding of L per complex-conjugate pair (Scalar::ball_at arguments) and its weight: the product of
+/// |sigma(x)| over all embeddings is the product of |ball_at(x, a, signs)|^weight over this list.
+struct Embedding {
+  long a;
+  RadicalMask signs;
+  int weight;
+};
+std::vector<Embedding> embeddings_up_to_conjugation(const Field& f);
+
+struct ModularZeroOptions {
+  size_t filter_primes = 2;     ///< primes tried before the norm bound is computed (a nonzero image ends early)
+  size_t max_primes = 20000;    ///< ResourceError when the norm bound needs more
+  int threads = 1;              ///< images at different primes in parallel; results identical at any count
+  long ball_precision = 64;     ///< working precision of the conjugate enclosures
+};
+
+struct ModularZeroResult {
+  bool zero = false;                  ///< proved: the matrix is exactly zero (norm bound)
+  bool nonzero = false;               ///< proved: the witness entry's image is nonzero
+  ModularPrime witness;               ///< when nonzero
+  size_t row = 0, col = 0;            ///< when nonzero: the entry
+  ulong value = 0;                    ///< when nonzero: its image mod witness.p
+  std::vector<ModularPrime> primes;   ///< primes at which every image vanished (all primes used when zero)
+  std::string norm_bound;             ///< when zero: B >= |N(s x)| for every entry x, as "M*2^E" (integers)
+  long bound_bits = 0;                ///< when zero: bits of B (log2 B rounded up)
+  std::string multiplier;             ///< the integer s (decimal)
+};
+
+/// Decides whether X = post * (L_n ... L_1 * start) - offset is the zero matrix (post, offset may be null:
+/// identity, zero) by modular images alone: nonzero as soon as one image has a nonzero entry (a proof);
+/// zero when every image vanishes at primes whose product exceeds the norm bound above (a proof). Letters in
+/// application order, as word_product_columns. ResourceError when more than opt.max_primes would be needed.
+ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, const Matrix& start,
+                                    const Matrix* post, const Matrix* offset, const ModularZeroOptions& opt = {});
+
 }  // namespace zb
