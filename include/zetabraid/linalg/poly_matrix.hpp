@@ -14,6 +14,7 @@
 #include <mutex>
 #include <vector>
 
+#include <flint/fmpz_mat.h>
 #include <flint/fmpz_poly_mat.h>
 
 #include "zetabraid/linalg/matrix.hpp"
@@ -38,11 +39,24 @@ class PolyContext {
     fmpz_t den;
   };
   const RadicandProduct& radicand_product(RadicalMask s) const;
+  /// Interpolation data for products of polynomials of length n (2n - 1 coefficients): the finite evaluation
+  /// points x_q (0, 1, -1, 2, -2, ...; 2n - 2 of them; the last value is taken at infinity), the inverse of their
+  /// Vandermonde matrix as inverse / denominator, and x_q^(2n - 2) (top_powers, a column).
+  struct Evaluation {
+    std::vector<slong> points;
+    fmpz_mat_t inverse, top_powers;
+    fmpz_t denominator;
+  };
+  const Evaluation& evaluation() const { return ev_; }
+  /// Whether PolyMatrix::mul uses evaluation (small degrees; 1 <= n <= kMaxEvaluationDegree).
+  static constexpr long kMaxEvaluationDegree = 12;
+  bool has_evaluation() const { return n_ >= 1 && n_ <= kMaxEvaluationDegree; }
 
  private:
   FieldPtr f_;
   long n_;
   fmpz_poly_t phi_;
+  Evaluation ev_;
   mutable std::mutex mu_;
   mutable std::map<RadicalMask, std::unique_ptr<RadicandProduct>> rp_;
 };
@@ -79,8 +93,16 @@ class PolyMatrix {
   /// Largest coefficient size in bits (over all masks and entries).
   long max_bits() const;
 
-  /// Exact product a * b (MathError on shape mismatch).
+  /// Exact product a * b (MathError on shape mismatch). When every entry of both factors lies in one part (graded
+  /// factors, as braid letters and their products are), one polynomial product per term instead of one per pair of
+  /// parts, and for long coefficients by evaluation at 2n - 1 points and exact interpolation (mul_graded).
   static PolyMatrix mul(const PolyMatrix& a, const PolyMatrix& b, const PolyContext& ctx);
+  /// The graded product directly (MathError unless graded_pair(a, b); evaluate needs ctx.has_evaluation()).
+  static PolyMatrix mul_graded(const PolyMatrix& a, const PolyMatrix& b, const PolyContext& ctx, bool evaluate);
+  /// Whether every entry of a and of b lies in a single part (then mul takes the graded path).
+  static bool graded_pair(const PolyMatrix& a, const PolyMatrix& b);
+  /// The same product with one fmpz_poly_mat product per pair of masks (independent path for tests).
+  static PolyMatrix mul_reference(const PolyMatrix& a, const PolyMatrix& b, const PolyContext& ctx);
   /// Positions (i, j) of the nonzero entries of each part (index as mask(k)).
   using Nonzeros = std::vector<std::vector<std::pair<long, long>>>;
   Nonzeros nonzeros() const;
@@ -91,7 +113,8 @@ class PolyMatrix {
   static PolyMatrix pow(const PolyMatrix& a, unsigned long e, const PolyContext& ctx);
 
  private:
-  static PolyMatrix mul_impl(const PolyMatrix& a, const Nonzeros* nz, const PolyMatrix& b, const PolyContext& ctx);
+  static PolyMatrix mul_impl(const PolyMatrix& a, const Nonzeros* nz, const PolyMatrix& b, const PolyContext& ctx,
+                             bool fast);
   void clear();
   void normalise();  // drop zero masks, cancel the common content against den
   long r_ = 0, c_ = 0;
