@@ -397,10 +397,26 @@ std::string Scalar::str(const std::function<std::string(int)>& radical_name) con
   return s;
 }
 
-void Scalar::ball(acb_t out, long prec) const {
+void Scalar::ball(acb_t out, long prec) const { ball_at(out, prec, 1, 0); }
+
+void Scalar::ball_at(acb_t out, long prec, long a, RadicalMask signs) const {
   acb_zero(out);
   if (t_.empty()) return;
-  const bool real = is_real(), imaginary = !real && conj() == -*this;  // exact
+  const long n = static_cast<long>(f_->conductor());
+  const bool identity = ((a % n) + n) % n == 1 % n && signs == 0;
+  // Under the standard embedding a real (or purely imaginary) value gets an exactly zero imaginary (real) part.
+  const bool real = identity && is_real(), imaginary = identity && !real && conj() == -*this;  // exact
+  std::map<RadicalMask, Cyclo> img;  // sigma_a(c_S)
+  if (!identity)
+    for (const auto& [m, cf] : t_) img.emplace(m, cf.galois(a));
+  const std::map<RadicalMask, Cyclo>& terms = identity ? t_ : img;
+  std::vector<Cyclo> rad;
+  std::vector<int> sign;
+  for (int j = 0; j < f_->radicand_count(); ++j) {
+    rad.push_back(identity ? f_->radicand(j) : f_->radicand(j).galois(a));
+    // sigma_a(d_j) is real (d_j lies in the real subfield); its sign is decided exactly (d_j itself is > 0)
+    sign.push_back(identity ? 1 : rad.back().real_sign());
+  }
   acb_t c, r;
   acb_init(c);
   acb_init(r);
@@ -410,47 +426,7 @@ void Scalar::ball(acb_t out, long prec) const {
   // correct relative bits (each term is itself evaluated to wp relative bits).
   for (long wp = prec + 20;; wp *= 2) {
     acb_zero(out);
-    for (const auto& [m, cf] : t_) {
-      cf.ball(c, wp);
-      for (int j = 0; j < 64; ++j)
-        if (m & (RadicalMask{1} << j)) {
-          f_->radicand(j).ball(r, wp);
-          arb_sqrt(sq, acb_realref(r), wp);
-          acb_mul_arb(c, c, sq, wp);
-        }
-      acb_add(out, out, c, wp);
-    }
-    if (real) arb_zero(acb_imagref(out));
-    if (imaginary) arb_zero(acb_realref(out));
-    if (acb_rel_accuracy_bits(out) >= prec || wp > (1L << 24)) break;
-  }
-  acb_set_round(out, out, prec);
-  arb_clear(sq);
-  acb_clear(r);
-  acb_clear(c);
-}
-
-void Scalar::ball_at(acb_t out, long prec, long a, RadicalMask signs) const {
-  acb_zero(out);
-  if (t_.empty()) return;
-  const long n = static_cast<long>(f_->conductor());
-  if (((a % n) + n) % n == 1 % n && signs == 0) return ball(out, prec);
-  std::map<RadicalMask, Cyclo> img;  // sigma_a(c_S)
-  for (const auto& [m, cf] : t_) img.emplace(m, cf.galois(a));
-  std::vector<Cyclo> rad;
-  std::vector<int> sign;
-  for (int j = 0; j < f_->radicand_count(); ++j) {
-    rad.push_back(f_->radicand(j).galois(a));
-    sign.push_back(rad.back().real_sign());  // sigma_a(d_j) is real (d_j lies in the real subfield); exact
-  }
-  acb_t c, r;
-  acb_init(c);
-  acb_init(r);
-  arb_t sq;
-  arb_init(sq);
-  for (long wp = prec + 20;; wp *= 2) {
-    acb_zero(out);
-    for (const auto& [m, cf] : img) {
+    for (const auto& [m, cf] : terms) {
       cf.ball(c, wp);
       for (int j = 0; j < 64; ++j)
         if (m & (RadicalMask{1} << j)) {
@@ -463,6 +439,8 @@ void Scalar::ball_at(acb_t out, long prec, long a, RadicalMask signs) const {
         }
       acb_add(out, out, c, wp);
     }
+    if (real) arb_zero(acb_imagref(out));
+    if (imaginary) arb_zero(acb_realref(out));
     if (acb_rel_accuracy_bits(out) >= prec || wp > (1L << 24)) break;
   }
   acb_set_round(out, out, prec);
