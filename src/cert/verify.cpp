@@ -9,6 +9,7 @@
 // here), and falls back to a plain left-to-right ball product otherwise (docs/certificate-format.md, section 7).
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
@@ -600,42 +601,27 @@ std::vector<ulong> mod_product(const std::vector<const LetterTable*>& w, const M
 }
 
 // Upper bound (mag) of s^[L:Q] * max over entries x of X of prod_sigma |sigma(x)|, s = product of the order
-// multipliers of the factors (every letter occurrence counted).
+// multipliers of the factors (every letter occurrence counted). Per embedding: the word is cut into blocks of
+// `block` letters, each block's conjugate enclosed as a ball matrix (letters applied to the identity), and the
+// kept columns are multiplied by the blocks in turn (radii then grow like the blocks' norms).
 void mod_norm_bound(mag_t out, const std::vector<const LetterTable*>& w, const Matrix& start, const Matrix* post,
                     const Matrix* offset, long prec) {
   const Field& f = *start.field();
-  const size_t k = start.cols();
-  const size_t rows = post ? post->rows() : (w.empty() ? start.rows() : w.back()->rows);
-  std::vector<mag_struct> entry(rows * k);
+  const slong k = static_cast<slong>(start.cols());
+  const size_t block = std::clamp<size_t>(128 * std::max<size_t>(1, start.cols()) / std::max<size_t>(1, start.rows()), 1, 128);
+  const slong rows = static_cast<slong>(post ? post->rows() : (w.empty() ? start.rows() : w.back()->rows));
+  std::vector<mag_struct> entry(static_cast<size_t>(rows * k));
   for (auto& e : entry) {
     mag_init(&e);
     mag_one(&e);
   }
   mag_t t;
   mag_init(t);
-  acb_t b, o;
-  acb_init(b);
+  acb_t o;
   acb_init(o);
   for (const Embedding& e : embeddings_up_to_conjugation(f)) {
-    std::vector<acb_struct> acc(start.rows() * k), next;
-    for (auto& z : acc) acb_init(&z);
-    for (size_t i = 0; i < start.rows(); ++i)
-      for (size_t j = 0; j < k; ++j) start(i, j).ball_at(&acc[i * k + j], prec, e.a, e.signs);
     std::map<const LetterTable*, std::vector<acb_struct>> balls;
-    auto step = [&](size_t out_rows, const std::vector<SparseEntry>& entries, const acb_struct* vals) {
-      next.resize(out_rows * k);
-      for (auto& z : next) {
-        acb_init(&z);
-        acb_zero(&z);
-      }
-      for (size_t n = 0; n < entries.size(); ++n)
-        for (size_t j = 0; j < k; ++j)
-          acb_addmul(&next[entries[n].row * k + j], vals + n, &acc[entries[n].col * k + j], prec);
-      for (auto& z : acc) acb_clear(&z);
-      acc.swap(next);
-      next.clear();
-    };
-    for (const LetterTable* tb : w) {
+    auto values = [&](const LetterTable* tb) -> const std::vector<acb_struct>& {
       auto it = balls.find(tb);
       if (it == balls.end()) {
         std::vector<acb_struct> v(tb->entries.size());
@@ -645,7 +631,40 @@ void mod_norm_bound(mag_t out, const std::vector<const LetterTable*>& w, const M
         }
         it = balls.emplace(tb, std::move(v)).first;
       }
-      step(tb->rows, tb->entries, it->second.data());
+      return it->second;
+    };
+    // cur (r x c) <- table * cur, sparse
+    auto left_apply = [&](acb_mat_t cur, size_t out_rows, const std::vector<SparseEntry>& ent,
+                          const std::vector<acb_struct>& val) {
+      acb_mat_t nx;
+      acb_mat_init(nx, static_cast<slong>(out_rows), acb_mat_ncols(cur));
+      for (size_t n = 0; n < ent.size(); ++n)
+        for (slong j = 0; j < acb_mat_ncols(cur); ++j)
+          acb_addmul(acb_mat_entry(nx, static_cast<slong>(ent[n].row), j), &val[n],
+                     acb_mat_entry(cur, static_cast<slong>(ent[n].col), j), prec);
+      acb_mat_swap(nx, cur);
+      acb_mat_clear(nx);
+    };
+    acb_mat_t v;
+    acb_mat_init(v, static_cast<slong>(start.rows()), k);
+    for (size_t i = 0; i < start.rows(); ++i)
+      for (slong j = 0; j < k; ++j)
+        start(i, static_cast<size_t>(j)).ball_at(acb_mat_entry(v, static_cast<slong>(i), j), prec, e.a, e.signs);
+    for (size_t at = 0; at < w.size(); at += block) {
+      const size_t end = std::min(w.size(), at + block);
+      if (end - at == 1) {
+        left_apply(v, w[at]->rows, w[at]->entries, values(w[at]));
+        continue;
+      }
+      acb_mat_t blk, prod;
+      acb_mat_init(blk, acb_mat_nrows(v), acb_mat_nrows(v));
+      acb_mat_one(blk);
+      for (size_t x = at; x < end; ++x) left_apply(blk, w[x]->rows, w[x]->entries, values(w[x]));
+      acb_mat_init(prod, acb_mat_nrows(blk), k);
+      acb_mat_mul(prod, blk, v, prec);
+      acb_mat_swap(prod, v);
+      acb_mat_clear(prod);
+      acb_mat_clear(blk);
     }
     if (post) {
       std::vector<SparseEntry> pe;
@@ -657,23 +676,24 @@ void mod_norm_bound(mag_t out, const std::vector<const LetterTable*>& w, const M
         acb_init(&pv[n]);
         pe[n].value.ball_at(&pv[n], prec, e.a, e.signs);
       }
-      step(post->rows(), pe, pv.data());
+      left_apply(v, post->rows(), pe, pv);
       for (auto& z : pv) acb_clear(&z);
     }
-    for (size_t i = 0; i < rows; ++i)
-      for (size_t j = 0; j < k; ++j) {
-        acb_set(b, &acc[i * k + j]);
+    for (slong i = 0; i < rows; ++i)
+      for (slong j = 0; j < k; ++j) {
+        acb_ptr x = acb_mat_entry(v, i, j);
         if (offset) {
-          (*offset)(i, j).ball_at(o, prec, e.a, e.signs);
-          acb_sub(b, b, o, prec);
+          (*offset)(static_cast<size_t>(i), static_cast<size_t>(j)).ball_at(o, prec, e.a, e.signs);
+          acb_sub(x, x, o, prec);
         }
-        acb_get_mag(t, b);
-        for (int r = 0; r < e.weight; ++r) mag_mul(&entry[i * k + j], &entry[i * k + j], t);
+        acb_get_mag(t, x);
+        for (int r = 0; r < e.weight; ++r) mag_mul(&entry[static_cast<size_t>(i * k + j)], &entry[static_cast<size_t>(i * k + j)], t);
       }
-    for (auto& z : acc) acb_clear(&z);
-    for (auto& [tb, v] : balls)
-      for (auto& z : v) acb_clear(&z);
+    acb_mat_clear(v);
+    for (auto& [tb, vals] : balls)
+      for (auto& z : vals) acb_clear(&z);
   }
+  acb_clear(o);
   mag_zero(out);
   for (auto& z : entry) {
     mag_max(out, out, &z);
@@ -710,8 +730,6 @@ void mod_norm_bound(mag_t out, const std::vector<const LetterTable*>& w, const M
   mag_mul(out, out, t);
   fmpz_clear(s);
   fmpz_clear(u);
-  acb_clear(b);
-  acb_clear(o);
   mag_clear(t);
 }
 
@@ -797,7 +815,7 @@ std::string modular_equal(const std::vector<const LetterTable*>& w, const Matrix
   mag_t bound, pm;
   mag_init(bound);
   mag_init(pm);
-  mod_norm_bound(bound, w, start, nullptr, &hint, 64);
+  mod_norm_bound(bound, w, start, nullptr, &hint, 128);
   fmpz_t prod;
   fmpz_init(prod);
   fmpz_one(prod);

@@ -71,23 +71,23 @@ TEST_CASE("modular verdicts equal the exact engine's on random two-qubit words (
 
 TEST_CASE("modular certificates: verified, deterministic, every tampered proof rejected") {
   const std::string d = zbtest::tmpdir("zb_modular_cert_test");
-  // A non-coordinate kept space (charge 1 of anyons 2-3 among four t anyons) and a long word of s2^{+-1} only:
-  // leak-free (s2 commutes with the charge of anyons 2-3, common practice), with a norm bound that needs many
-  // primes. And a leaking word (s1 changes the charge of anyons 2-3).
-  zbtest::spit(d + "/free.txt", random_word_text(5, 300, {2}));
+  // A non-coordinate kept space (charge 1 of anyons 2-3 among six t anyons) and a long word of s2, s4, s5 only:
+  // leak-free (those braids never move anyons 2-3 apart from each other or braid another anyon around them,
+  // common practice), with a norm bound that needs many primes. And a leaking word (s1, s3 change that charge).
+  zbtest::spit(d + "/free.txt", random_word_text(5, 3000, {2, 4, 5}));
   zbtest::spit(d + "/leak.txt", random_word_text(6, 40, {1, 2, 3}));
   for (const std::string name : {"free", "leak"}) {
     CAPTURE(name);
     std::string a = d + "/" + name + ".json", b = d + "/" + name + "2.json";
-    auto r = zbtest::run(certify_cmd("t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --out " + a));
+    auto r = zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --out " + a));
     CHECK(r.status == (name == "free" ? 0 : 1));
-    zbtest::run(certify_cmd("t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --threads 2 --out " + b));
+    zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --threads 2 --out " + b));
     CHECK(zbtest::slurp(a) == zbtest::slurp(b));  // same bytes at any thread count
     r = zbtest::run(zbtest::cli() + " verify " + a);
     CHECK(r.status == 0);
     CHECK(r.out.rfind("VERIFIED", 0) == 0);
     // The exact engine agrees.
-    r = zbtest::run(certify_cmd("t t t t", "2-3:1", d + "/" + name + ".txt", "--method exact --json"));
+    r = zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method exact --json"));
     CHECK(nlohmann::json::parse(r.out)["verdict"] == (name == "free" ? "leak-free" : "leaks"));
     auto j0 = ojson::parse(zbtest::slurp(a));
     CHECK(j0["method"]["name"] == "modular");
@@ -100,7 +100,13 @@ TEST_CASE("modular certificates: verified, deterministic, every tampered proof r
     if (name == "free") {
       size_t n = j0["proof"]["primes"].size();
       CHECK(n > 10);
-      edits.push_back({"one prime short", [](ojson& x) { x["proof"]["primes"].erase(x["proof"]["primes"].size() - 1); }});
+      // Primes < 2^62: keeping floor((bits - 2)/62) of them leaves a product below the bound (>= 2^(bits - 1)).
+      size_t keep = static_cast<size_t>((j0["proof"]["bound_bits"].get<long>() - 2) / 62);
+      REQUIRE(keep >= 1);
+      edits.push_back({"too few primes", [keep](ojson& x) {
+                         auto& p = x["proof"]["primes"];
+                         while (p.size() > keep) p.erase(p.size() - 1);
+                       }});
       edits.push_back({"duplicate prime", [](ojson& x) { x["proof"]["primes"][1] = x["proof"]["primes"][0]; }});
       edits.push_back({"wrong root", [](ojson& x) {
                          auto& q = x["proof"]["primes"][0];
@@ -124,7 +130,7 @@ TEST_CASE("modular certificates: verified, deterministic, every tampered proof r
     // The PARI/GP re-check of the same claim (an exact product in GP, no zetabraid code).
     if (zbtest::have_gp()) {
       std::string gpf = d + "/" + name + ".gp";
-      zbtest::run(certify_cmd("t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --export-gp " + gpf));
+      zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --export-gp " + gpf));
       CHECK(zbtest::run(std::string(ZB_GP) + " -q -f " + gpf).out.find("zetabraid-gp: verified") != std::string::npos);
     }
   }

@@ -16,6 +16,7 @@
 //    such bounds). Certificates must say which of the two backs a conclusion drawn from images.
 #pragma once
 #include <cstdint>
+#include <string>
 #include <vector>
 
 #include <flint/nmod_vec.h>
@@ -97,7 +98,12 @@ struct ModularZeroOptions {
   size_t filter_primes = 2;     ///< primes tried before the norm bound is computed (a nonzero image ends early)
   size_t max_primes = 20000;    ///< ResourceError when the norm bound needs more
   int threads = 1;              ///< images at different primes in parallel; results identical at any count
-  long ball_precision = 64;     ///< working precision of the conjugate enclosures
+  long ball_precision = 128;    ///< working precision of the conjugate enclosures
+  /// Letters multiplied into blocks of this many before the columns are propagated (the conjugate bound's radii
+  /// then grow like the blocks' norms instead of the letters' absolute values); 1 = letter by letter; 0 =
+  /// automatic: 128 * columns / dimension, clamped to 1..128 (a block costs about dimension / columns times the
+  /// column propagation of its letters).
+  size_t block = 0;
 };
 
 struct ModularZeroResult {
@@ -112,9 +118,16 @@ struct ModularZeroResult {
   std::string multiplier;             ///< the integer s (decimal)
 };
 
+/// The bound the zero test compares with: B >= s^[L:Q] * max over the entries x of X of prod_sigma |sigma(x)|
+/// >= |N_{L/Q}(s x)| (s, written to *multiplier when given: the product of the factors' order_multiplier, each
+/// letter occurrence counted).
+void modular_norm_bound(mag_t bound, std::string* multiplier, const std::vector<const Matrix*>& letters,
+                        const Matrix& start, const Matrix* post, const Matrix* offset, const ModularZeroOptions& opt = {});
+
 /// Decides whether X = post * (L_n ... L_1 * start) - offset is the zero matrix (post, offset may be null:
 /// identity, zero) by modular images alone: nonzero as soon as one image has a nonzero entry (a proof);
-/// zero when every image vanishes at primes whose product exceeds the norm bound above (a proof). Letters in
+/// zero when every image vanishes at primes whose product exceeds the norm bound above times 2^64 (a proof; the
+/// margin lets an independent checker with a slightly larger rigorous bound accept the same primes). Letters in
 /// application order, as word_product_columns. ResourceError when more than opt.max_primes would be needed.
 ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, const Matrix& start,
                                     const Matrix* post, const Matrix* offset, const ModularZeroOptions& opt = {});
