@@ -338,9 +338,26 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
   res.letters = w.size();
   res.unitary = model.claims_unitary;
   Method m = opt.method;
-  if (m == Method::kAuto)  // interval bounds need unitary data; without it only the exact decision is possible
-    m = !res.unitary || w.size() * space.dimension() * keep.kept() <= opt.exact_budget ? Method::kExact
-                                                                                       : Method::kInterval;
+  if (m == Method::kAuto) {
+    // Short words: exact. Long words: interval bounds for unitary data; otherwise a modular filter first (a
+    // nonzero image proves the leak at once), then the exact engine for the leak-free decision.
+    const bool small = w.size() * space.dimension() * keep.kept() <= opt.exact_budget;
+    m = small ? Method::kExact : res.unitary ? Method::kInterval : Method::kExact;
+    if (!small && !res.unitary) {
+      Matrix post = leak_post(keep);
+      ModularZeroOptions mo;
+      mo.threads = opt.threads;
+      mo.prove_zero = false;
+      ModularZeroResult z = modular_zero_test(letters, keep.basis, &post, nullptr, mo);
+      if (z.nonzero) {
+        res.method = Method::kModular;
+        res.verdict = "leaks";
+        res.precision = mo.ball_precision;
+        res.modular = std::move(z);
+        return res;
+      }
+    }
+  }
   res.method = m;
   if (m == Method::kModular) {
     Matrix post = leak_post(keep);
@@ -352,7 +369,9 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
     return res;
   }
   if (m == Method::kExact) {
-    Matrix img = letters.empty() ? keep.basis : word_product_columns(letters, keep.basis);
+    ProductOptions po;
+    po.threads = opt.threads;
+    Matrix img = letters.empty() ? keep.basis : word_product_columns(letters, keep.basis, po);
     ExactLeak el = exact_leakage(keep, img, res.unitary);
     res.verdict = el.leak_free ? "leak-free" : "leaks";
     res.leakage = el.leakage;
@@ -375,7 +394,7 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
     if (letters.empty())
       keep.basis.ball(img, prec);
     else
-      word_product_ball(img, letters, keep.basis, prec);
+      word_product_ball(img, letters, keep.basis, prec, BallMethod::kAuto, opt.threads);
     ball_leakage(leak, keep, img, prec);
     long acc = arb_rel_accuracy_bits(leak);
     long rad_bits = mag_is_zero(arb_radref(leak)) ? prec : -static_cast<long>(mag_get_d_log2_approx(arb_radref(leak)));

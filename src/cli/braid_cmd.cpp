@@ -1,6 +1,9 @@
 // `zetabraid braid ...`, `zetabraid certify`, `zetabraid verify`: option parsing and printing only.
 #include <fmt/format.h>
 
+#include <algorithm>
+#include <thread>
+
 #include <nlohmann/json.hpp>
 
 #include "commands.hpp"
@@ -297,7 +300,7 @@ void add_braid_commands(CLI::App& app, Action& action) {
     struct O {
       std::string model, anyons, total, keep, keep_file, word, word_file, method = "auto", out, gp;
       long precision = 0;
-      int threads = 1;
+      int threads = 0;
       bool json = false;
     };
     auto o = std::make_shared<O>();
@@ -311,7 +314,8 @@ void add_braid_commands(CLI::App& app, Action& action) {
     c->add_option("--method", o->method,
                   "exact | interval | modular | auto (exact unless the word is long); modular decides leak-free / "
                   "leaks by modular images with a norm bound, without the leakage value");
-    c->add_option("--threads", o->threads, "worker threads for the modular method (same result at any count)");
+    c->add_option("--threads", o->threads,
+                  "worker threads of the product engines (default: all cores, at most 8; same result at any count)");
     c->add_option("--precision", o->precision, "interval working precision in bits (default: raised until decided)");
     c->add_option("--out", o->out, "write a certificate (JSON, docs/certificate-format.md)");
     c->add_option("--export-gp", o->gp, "write a self-contained PARI/GP script re-checking the claim");
@@ -324,8 +328,9 @@ void add_braid_commands(CLI::App& app, Action& action) {
         CertifyOptions opt;
         opt.method = parse_method(o->method);
         opt.precision = o->precision;
-        if (o->threads < 1 || o->threads > 64) throw InputError("--threads must be 1..64");
-        opt.threads = o->threads;
+        if (o->threads < 0 || o->threads > 64) throw InputError("--threads must be 0..64 (0: all cores, at most 8)");
+        opt.threads = o->threads ? o->threads
+                                 : static_cast<int>(std::clamp(std::thread::hardware_concurrency(), 1u, 8u));
         Model m = load_model(o->model);
         std::vector<int> an = parse_anyons(m, o->anyons);
         int total = parse_label(m, o->total, "total charge");

@@ -491,7 +491,7 @@ ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, c
     }
     return false;
   };
-  if (run(std::max<size_t>(1, opt.filter_primes))) return res;
+  if (run(std::max<size_t>(1, opt.filter_primes)) || !opt.prove_zero) return res;
   fmpz_t t;
   fmpz_init(t);
   mag_t bound;

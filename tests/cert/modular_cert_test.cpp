@@ -153,3 +153,38 @@ TEST_CASE("verify --via modular re-checks an exact certificate's image by modula
   r = zbtest::run(zbtest::cli() + " verify --via nonsense " + a, true);
   CHECK(r.status == 2);
 }
+
+TEST_CASE("certificates are the same bytes at 1 and 2 threads (exact, interval, modular)") {
+  const std::string d = zbtest::tmpdir("zb_modular_cert_test");
+  zbtest::spit(d + "/w10.txt", random_word_text(12, 400, {1, 2, 3, 4, 5, 6, 7, 8, 9}));
+  for (const std::string method : {"exact", "interval", "modular"}) {
+    CAPTURE(method);
+    std::string a = d + "/t1.json", b = d + "/t2.json";
+    zbtest::run(certify_cmd("t t t t t t t t t t", "1-3:t,4-6:t", d + "/w10.txt", "--method " + method + " --threads 1 --out " + a));
+    zbtest::run(certify_cmd("t t t t t t t t t t", "1-3:t,4-6:t", d + "/w10.txt", "--method " + method + " --threads 2 --out " + b));
+    std::string x = zbtest::slurp(a);
+    CHECK(!x.empty());
+    CHECK(x == zbtest::slurp(b));
+  }
+}
+
+TEST_CASE("auto method, model without a unitary gauge, long word: a nonzero image proves the leak, else exact") {
+  // Yang-Lee data (the non-unitary Galois conjugate of Fibonacci): no leakage value, so auto falls back on the
+  // modular filter for long words. Reference verdicts from the exact method.
+  Model m = load_model(zbtest::source_dir() + "/models/yang_lee.toml");
+  int t = m.label_index("t");
+  BraidGenerators g(m, m.label_index("1"));
+  std::vector<int> six(6, t);
+  Subspace keep = subspace_from_groups(g.space(six), parse_keep(m, "1-3:t,4-6:t", 6));
+  CertifyOptions au, ex;
+  au.method = Method::kAuto;
+  au.exact_budget = 10;  // every word below counts as long
+  ex.method = Method::kExact;
+  for (unsigned seed = 1; seed <= 6; ++seed) {
+    CAPTURE(seed);
+    Word w = parse_word(random_word_text(seed, 60, seed % 2 ? std::vector<int>{1, 2, 3, 4, 5} : std::vector<int>{1, 2, 4, 5}));
+    CertifyResult a = certify(g, six, keep, w, au), e = certify(g, six, keep, w, ex);
+    CHECK(a.verdict == e.verdict);
+    CHECK(a.method == (e.verdict == "leaks" ? Method::kModular : Method::kExact));
+  }
+}

@@ -31,7 +31,8 @@ struct CertifyOptions {
   long target_bits = 64;           ///< automatic precision: raise until the leakage radius is below 2^-target_bits
   long max_precision = 1 << 16;    ///< cap of the automatic precision
   size_t exact_budget = 2'000'000; ///< auto: exact when letters * dimension * kept <= budget, else interval
-  int threads = 1;                 ///< modular method: primes in parallel (same result at any count)
+                                   ///< (unitary models) or a modular filter, then exact (other models)
+  int threads = 1;                 ///< worker threads of the product engines (same result at any count)
 };
 
 struct CertifyResult {

@@ -97,6 +97,7 @@ std::vector<Embedding> embeddings_up_to_conjugation(const Field& f);
 struct ModularZeroOptions {
   size_t filter_primes = 2;     ///< primes tried before the norm bound is computed (a nonzero image ends early)
   size_t max_primes = 20000;    ///< ResourceError when the norm bound needs more
+  bool prove_zero = true;       ///< false: a filter only (after filter_primes vanishing images neither flag is set)
   int threads = 1;              ///< images at different primes in parallel; results identical at any count
   long ball_precision = 128;    ///< working precision of the conjugate enclosures
   /// Letters multiplied into blocks of this many before the columns are propagated (the conjugate bound's radii
