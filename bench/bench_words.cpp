@@ -1,7 +1,7 @@
 // Braid-word products on Fibonacci anyons: exact engine, interval engine (bits kept), one modular image and a
 // straightforward exact PARI/GP product, each as a time ratio to complex double in the same process.
 // Run through scripts/bench-words. Usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS]
-//                                        [--anyons N] [--length L] [--no-gp]
+//                                        [--anyons N] [--length L] [--no-gp] [--threads T]
 //
 // Cases: 6 anyons, total charge 1 (the two-qubit encoding, dimension 5): the full 5x5 product.
 //        10 and 14 anyons, total charge 1 (dimensions 34 and 233): 4 columns (the first four basis vectors)
@@ -179,7 +179,7 @@ std::string ratio(double t, double base) {
 
 int main(int argc, char** argv) {
   if (argc < 2) {
-    std::fprintf(stderr, "usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS] [--anyons N] [--length L] [--no-gp]\n");
+    std::fprintf(stderr, "usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS] [--anyons N] [--length L] [--no-gp] [--threads T]\n");
     return 2;
   }
   std::string gp = "gp";
@@ -188,6 +188,7 @@ int main(int argc, char** argv) {
   int only_n = 0;         // --anyons N: only that case
   size_t only_len = 0;    // --length L: only that length
   bool no_gp = false;     // --no-gp: skip the PARI/GP runs
+  int threads = 2;        // --threads T: also time the exact engine with T threads (1: skip)
   for (int i = 2; i < argc; ++i) {
     std::string a = argv[i];
     if (a == "--quick") quick = true;
@@ -196,6 +197,7 @@ int main(int argc, char** argv) {
     else if (a == "--anyons" && i + 1 < argc) only_n = std::atoi(argv[++i]);
     else if (a == "--length" && i + 1 < argc) only_len = static_cast<size_t>(std::atol(argv[++i]));
     else if (a == "--no-gp") no_gp = true;
+    else if (a == "--threads" && i + 1 < argc) threads = std::atoi(argv[++i]);
   }
   Model model = load_model(argv[1]);
   int one = model.label_index("1"), tau = model.label_index("t");
@@ -210,8 +212,9 @@ int main(int argc, char** argv) {
 
   fmt::print("Fibonacci anyons, total charge 1; times as ratios to complex double (same process, same word).\n");
   fmt::print("modular prime p = {} (zeta -> {}, sqrt -> {})\n\n", q.p, q.zeta, q.roots.empty() ? 0 : q.roots[0]);
-  fmt::print("{:>3} {:>4} {:>4} {:>7} | {:>11} | {:>7} {:>7} {:>9} {:>5} {:>5} {:>7} | {:>9} {:>9}\n", "n", "dim", "cols",
-             "L", "double [s]", "exact", "ival", "ival bits", "prec", "runs", "mod p", "GP/double", "GP/exact");
+  fmt::print("{:>3} {:>4} {:>4} {:>7} | {:>11} | {:>7} {:>7} {:>7} {:>9} {:>5} {:>5} {:>7} {:>12} | {:>9} {:>9} {:>9}\n",
+             "n", "dim", "cols", "L", "double [s]", "exact", fmt::format("ex {}th", threads), "ival", "ival bits", "prec",
+             "runs", "mod p", "proof (pr.)", "GP/double", "GP/exact", fmt::format("GP/ex{}t", threads));
   for (int n : counts) {
     std::vector<int> anyons(static_cast<size_t>(n), tau);
     size_t dim = gens.space(anyons).dimension();
@@ -221,8 +224,8 @@ int main(int argc, char** argv) {
       for (size_t j = 0; j < k; ++j) c.push_back(j);
       return c;
     }());
-    double prev_exact = 0;
-    size_t prev_len = 0;
+    double prev_exact = 0, prev_proof = 0;
+    size_t prev_len = 0, prev_proof_len = 0;
     for (size_t len : lengths) {
       auto w = random_word(gens, anyons, len, 1000u + static_cast<unsigned>(n));
       std::unordered_map<const Matrix*, DoubleLetter> dl;
@@ -249,6 +252,30 @@ int main(int argc, char** argv) {
         prev_exact = t_exact;
         prev_len = len;
       }
+      // The same exact product with `threads` worker threads (identical result; wall-clock time).
+      double t_exact_mt = -1;
+      if (!skip && threads > 1) {
+        ProductOptions po;
+        po.threads = threads;
+        t_exact_mt = time_it([&] {
+          Matrix r = n == 6 ? word_product(w, po) : word_product_columns(w, start, po);
+          sink = sink + static_cast<double>(r.rows());
+        }, 20);
+      }
+      // A deterministic proof by modular images that the exact result is rho(w) * start (what `verify --via
+      // modular` does): images of the difference at primes whose product exceeds the norm bound. ~L^2: L <= 10^4.
+      double t_proof = -1;
+      size_t proof_primes = 0;
+      // (cost ~ primes * L * nnz * columns: skipped when the previous length's proof predicts over 60 s)
+      bool proof_skip = prev_proof > 0 && prev_proof * std::pow(static_cast<double>(len) / static_cast<double>(prev_proof_len), 2.0) > 60;
+      if (exact && len <= 10000 && !proof_skip) {
+        t_proof = time_it([&] {
+          ModularZeroResult z = modular_zero_test(w, start, nullptr, exact.get());
+          proof_primes = z.primes.size();
+        }, 5);
+        prev_proof = t_proof;
+        prev_proof_len = len;
+      }
       // Interval engine, adaptive precision for 64 bits.
       BallReport rep;
       acb_mat_t b;
@@ -261,7 +288,7 @@ int main(int argc, char** argv) {
         ModularImage im = word_product_mod(w, start, q);
         sink = sink + static_cast<double>(im(0, 0));
       });
-      std::string gps = "-", gpe = "-";
+      std::string gps = "-", gpe = "-", gpe2 = "-";
       if (len <= 30000 && !no_gp) {
         int agrees = -1;
         double t_gp = gp_time(gp, *model.field, w, start, gp_limit, exact.get(), &agrees);
@@ -272,10 +299,15 @@ int main(int argc, char** argv) {
         gp_checked += agrees == 1;
         gps = ratio(t_gp, t_double);
         if (t_exact > 0) gpe = t_gp < 0 ? fmt::format(">{:.0f}", -t_gp / t_exact) : fmt::format("{:.0f}", t_gp / t_exact);
+        if (t_exact_mt > 0)
+          gpe2 = t_gp < 0 ? fmt::format(">{:.0f}", -t_gp / t_exact_mt) : fmt::format("{:.0f}", t_gp / t_exact_mt);
       }
-      fmt::print("{:>3} {:>4} {:>4} {:>7} | {:>11.3g} | {:>7} {:>7} {:>9} {:>5} {:>5} {:>7} | {:>9} {:>9}\n", n, dim, k,
-                 len, t_double, t_exact < 0 ? std::string("skip") : ratio(t_exact, t_double), ratio(t_ball, t_double),
-                 rep.accuracy_bits, rep.precision, rep.runs, ratio(t_mod, t_double), gps, gpe);
+      fmt::print("{:>3} {:>4} {:>4} {:>7} | {:>11.3g} | {:>7} {:>7} {:>7} {:>9} {:>5} {:>5} {:>7} {:>12} | {:>9} {:>9} {:>9}\n",
+                 n, dim, k, len, t_double, t_exact < 0 ? std::string("skip") : ratio(t_exact, t_double),
+                 t_exact_mt < 0 ? std::string("-") : ratio(t_exact_mt, t_double), ratio(t_ball, t_double),
+                 rep.accuracy_bits, rep.precision, rep.runs, ratio(t_mod, t_double),
+                 t_proof < 0 ? std::string("-") : fmt::format("{} ({})", ratio(t_proof, t_double), proof_primes), gps,
+                 gpe, gpe2);
       std::fflush(stdout);
     }
   }

@@ -187,16 +187,25 @@ struct Converted {
 
 Converted convert(const std::vector<const Matrix*>& letters, const PolyContext& ctx, bool runs) {
   Converted c;
+  // Braid words have few distinct letters: a linear scan of them (hash map beyond 32) finds each letter's leaf.
+  std::vector<const Matrix*> seen;
   std::unordered_map<const Matrix*, size_t> index;
   for (const Matrix* m : letters) {
-    auto it = index.find(m);
-    size_t leaf;
-    if (it == index.end()) {
-      leaf = c.leaves.size();
+    size_t leaf = seen.size();
+    if (seen.size() <= 32) {
+      for (size_t q = 0; q < seen.size(); ++q)
+        if (seen[q] == m) {
+          leaf = q;
+          break;
+        }
+    } else {
+      auto it = index.find(m);
+      if (it != index.end()) leaf = it->second;
+    }
+    if (leaf == seen.size()) {
+      seen.push_back(m);
       index.emplace(m, leaf);
       c.leaves.push_back(PolyMatrix::from_matrix(*m, ctx));
-    } else {
-      leaf = it->second;
     }
     if (runs && !c.tokens.empty() && c.tokens.back().leaf == leaf)
       ++c.tokens.back().exp;

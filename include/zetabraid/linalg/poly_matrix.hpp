@@ -48,11 +48,16 @@ class PolyContext {
     fmpz_t denominator;
   };
   const Evaluation& evaluation() const { return ev_; }
+  /// p <- p mod Phi_N in place (the exact remainder). Lengths up to 3n - 2 use a table of x^k mod Phi_N (small
+  /// integers, no allocation); longer polynomials fall back to fmpz_poly_rem.
+  void reduce(fmpz_poly_t p) const;
   /// Whether PolyMatrix::mul uses evaluation (small degrees; 1 <= n <= kMaxEvaluationDegree).
   static constexpr long kMaxEvaluationDegree = 12;
   bool has_evaluation() const { return n_ >= 1 && n_ <= kMaxEvaluationDegree; }
 
  private:
+  // reduce_[k - n] = coefficients of x^k mod Phi_N (length n), k = n .. 3n - 3; empty when a value exceeds slong.
+  std::vector<std::vector<slong>> reduce_;
   FieldPtr f_;
   long n_;
   fmpz_poly_t phi_;
