@@ -36,30 +36,30 @@ class SparseLetter {
   };
   const std::vector<Term>& terms() const { return terms_; }
 
-  /// The same terms grouped by destination (result mask, row i), each with its dense n x n multiplication
-  /// matrix: the grouped kernel keeps one destination column of n coefficients in registers while it sums
-  /// over the group (each destination written once). Built by make for every letter.
-  struct Source {
-    int from;
-    long c;
-    size_t dense;  // offset of the n x n matrix (row-major, [r][t]) in dense()
+  /// The same sums as a program over operand coefficient rows (all k columns of one (mask, row, t) at a time):
+  /// every destination row (mask, row i, coefficient r) adds the source rows whose multiplier is +1, subtracts
+  /// those with -1 and multiplies the rest (braid letters are almost all +-1), so the usual case needs no
+  /// multiplication. Row indices are in units of k columns: dest = (to * rows + i) * n + r, source =
+  /// (from * cols + c) * n + t. Destination rows with no source are absent (covers_all() tells).
+  struct ProgramRow {
+    std::int64_t dst;
+    std::uint32_t plus, minus, times;  // counts, in this order, from `first` in program_sources()
+    std::uint32_t first;
   };
-  struct Group {
-    int to;
-    long i;
-    size_t first, count;  // into sources()
+  struct ProgramSource {
+    std::int64_t src, v;
   };
-  const std::vector<Group>& groups() const { return groups_; }
-  const std::vector<Source>& sources() const { return sources_; }
-  const std::vector<std::int64_t>& dense() const { return dense_; }
+  const std::vector<ProgramRow>& program_rows() const { return prog_rows_; }
+  const std::vector<ProgramSource>& program_sources() const { return prog_src_; }
+  bool covers_all() const { return covers_all_; }
 
  private:
+  std::vector<ProgramRow> prog_rows_;
+  std::vector<ProgramSource> prog_src_;
+  bool covers_all_ = false;
   long rows_ = 0, cols_ = 0;
   double beta_ = 0;
   std::vector<Term> terms_;
-  std::vector<Group> groups_;
-  std::vector<Source> sources_;
-  std::vector<std::int64_t> dense_;
 };
 
 /// Dense coefficient array for a rows x k matrix with 2^m masks.
@@ -91,11 +91,12 @@ struct BigBlock {
 /// Whether G applied to x is safe in int64.
 bool fits_small(const SparseLetter& g, SmallBlock& x);
 SmallBlock apply(const SparseLetter& g, const SmallBlock& x);
-/// Same into *out (must not be x), reusing its buffer, with the grouped kernel. apply_into_entries (entry by
-/// entry) and apply_into_grouped with allow_vector = false (no AVX-512 lanes) give identical results (tests).
+/// Same into *out (must not be x), reusing its buffer, with the row program (SparseLetter::program_rows;
+/// AVX-512 lanes when the processor has them). apply_into_entries (entry by entry, the reference) and
+/// apply_into_program with allow_vector = false (portable loop) give identical results (tests).
 void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
 void apply_into_entries(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
-void apply_into_grouped(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool allow_vector = true);
+void apply_into_program(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool allow_vector = true);
 BigBlock apply(const SparseLetter& g, const BigBlock& x);
 
 }  // namespace zb::detail
