@@ -187,6 +187,7 @@ struct Converted {
 
 Converted convert(const std::vector<const Matrix*>& letters, const PolyContext& ctx, bool runs) {
   Converted c;
+  c.tokens.reserve(letters.size());
   // Braid words have few distinct letters: a linear scan of them (hash map beyond 32) finds each letter's leaf.
   std::vector<const Matrix*> seen;
   std::unordered_map<const Matrix*, size_t> index;
@@ -283,6 +284,7 @@ PolyMatrix exact_product(const std::vector<const Matrix*>& letters, const PolyCo
     return tree.product(c.tokens);
   }
   std::vector<size_t> seq;
+  seq.reserve(letters.size());
   for (const Token& t : c.tokens)
     for (unsigned long e = 0; e < t.exp; ++e) seq.push_back(t.leaf);
   int parts = std::max(1, std::min<int>(opt.threads, static_cast<int>(seq.size() / 64) + 1));
