@@ -143,7 +143,8 @@ double gp_time(const std::string& gp, const Field& f, const std::vector<const Ma
   if (expect) o << "R = " << gp_matrix(*expect) << ";\nprint(if(r, P == R, -1));\n";
   o << "quit\n";
   o.close();
-  std::string cmd = gp + " -q -f --default colors=no " + path + " 2>/dev/null";
+  std::string log = path + ".log";
+  std::string cmd = gp + " -q -f --default colors=no " + path + " 2>" + log;
   FILE* p = popen(cmd.c_str(), "r");
   double ms = -1;
   *agrees = -1;
@@ -153,7 +154,12 @@ double gp_time(const std::string& gp, const Field& f, const std::vector<const Ma
     if (expect && fgets(buf, sizeof buf, p)) *agrees = std::atoi(buf);
     pclose(p);
   }
+  if (*agrees == 0) {  // keep the script and GP's messages for inspection
+    std::fprintf(stderr, "GP script kept: %s (messages: %s)\n", path.c_str(), log.c_str());
+    return ms < 0 ? -limit : ms / 1000.0;
+  }
   std::remove(path.c_str());
+  std::remove(log.c_str());
   return ms < 0 ? -limit : ms / 1000.0;
 }
 

@@ -320,6 +320,27 @@ Matrix leak_post(const Subspace& keep) {
   return Matrix::identity(f, dim) - v * ((vh * v).inverse() * vh);
 }
 
+namespace {
+
+// Verdict from modular images of the leak block (method modular). With prove_zero off only the filter runs:
+// returns false (res untouched) when every image vanished.
+bool modular_verdict(CertifyResult* res, const std::vector<const Matrix*>& letters, const Subspace& keep, int threads,
+                     bool prove_zero) {
+  Matrix post = leak_post(keep);
+  ModularZeroOptions mo;
+  mo.threads = threads;
+  mo.prove_zero = prove_zero;
+  ModularZeroResult z = modular_zero_test(letters, keep.basis, &post, nullptr, mo);
+  if (!z.zero && !z.nonzero) return false;
+  res->method = Method::kModular;
+  res->verdict = z.zero ? "leak-free" : "leaks";
+  res->precision = mo.ball_precision;
+  res->modular = std::move(z);
+  return true;
+}
+
+}  // namespace
+
 CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, const Subspace& keep, const Word& w,
                       const CertifyOptions& opt) {
   const Model& model = gens.model();
@@ -343,29 +364,11 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
     // nonzero image proves the leak at once), then the exact engine for the leak-free decision.
     const bool small = w.size() * space.dimension() * keep.kept() <= opt.exact_budget;
     m = small ? Method::kExact : res.unitary ? Method::kInterval : Method::kExact;
-    if (!small && !res.unitary) {
-      Matrix post = leak_post(keep);
-      ModularZeroOptions mo;
-      mo.threads = opt.threads;
-      mo.prove_zero = false;
-      ModularZeroResult z = modular_zero_test(letters, keep.basis, &post, nullptr, mo);
-      if (z.nonzero) {
-        res.method = Method::kModular;
-        res.verdict = "leaks";
-        res.precision = mo.ball_precision;
-        res.modular = std::move(z);
-        return res;
-      }
-    }
+    if (!small && !res.unitary && modular_verdict(&res, letters, keep, opt.threads, false)) return res;
   }
   res.method = m;
   if (m == Method::kModular) {
-    Matrix post = leak_post(keep);
-    ModularZeroOptions mo;
-    mo.threads = opt.threads;
-    res.modular = modular_zero_test(letters, keep.basis, &post, nullptr, mo);
-    res.verdict = res.modular->zero ? "leak-free" : "leaks";
-    res.precision = mo.ball_precision;
+    modular_verdict(&res, letters, keep, opt.threads, true);
     return res;
   }
   if (m == Method::kExact) {

@@ -35,6 +35,17 @@ const Cyclo& Field::radicand_product(RadicalMask s) const {
   return products_.emplace(s, std::move(p)).first->second;
 }
 
+const Field::Conjugate& Field::conjugate_radicand(int j, long a) const {
+  const long n = static_cast<long>(conductor());
+  const long am = ((a % n) + n) % n;
+  std::lock_guard<std::mutex> lock(mu_);
+  auto it = conjugates_.find({j, am});
+  if (it != conjugates_.end()) return it->second;
+  Cyclo v = radicands_.at(static_cast<size_t>(j)).galois(am);
+  int sign = v.real_sign();
+  return conjugates_.emplace(std::make_pair(j, am), Conjugate{std::move(v), sign}).first->second;
+}
+
 bool Field::sqrt_in_base(const Cyclo& x, Cyclo* root) {
   WitnessList w(x.field()->conductor());
   SquareAnswer a = decide_square(x, w);
@@ -410,12 +421,18 @@ void Scalar::ball_at(acb_t out, long prec, long a, RadicalMask signs) const {
   if (!identity)
     for (const auto& [m, cf] : t_) img.emplace(m, cf.galois(a));
   const std::map<RadicalMask, Cyclo>& terms = identity ? t_ : img;
-  std::vector<Cyclo> rad;
+  // sigma_a(d_j) is real (d_j lies in the real subfield); its sign is decided exactly (d_j itself is > 0)
+  std::vector<const Cyclo*> rad;
   std::vector<int> sign;
   for (int j = 0; j < f_->radicand_count(); ++j) {
-    rad.push_back(identity ? f_->radicand(j) : f_->radicand(j).galois(a));
-    // sigma_a(d_j) is real (d_j lies in the real subfield); its sign is decided exactly (d_j itself is > 0)
-    sign.push_back(identity ? 1 : rad.back().real_sign());
+    if (identity) {
+      rad.push_back(&f_->radicand(j));
+      sign.push_back(1);
+    } else {
+      const Field::Conjugate& c = f_->conjugate_radicand(j, a);
+      rad.push_back(&c.value);
+      sign.push_back(c.sign);
+    }
   }
   acb_t c, r;
   acb_init(c);
@@ -430,7 +447,7 @@ void Scalar::ball_at(acb_t out, long prec, long a, RadicalMask signs) const {
       cf.ball(c, wp);
       for (int j = 0; j < 64; ++j)
         if (m & (RadicalMask{1} << j)) {
-          rad[static_cast<size_t>(j)].ball(r, wp);
+          rad[static_cast<size_t>(j)]->ball(r, wp);
           arb_abs(sq, acb_realref(r));
           arb_sqrt(sq, sq, wp);
           if (sign[static_cast<size_t>(j)] < 0) acb_mul_onei(c, c);

@@ -42,6 +42,12 @@ class Field : public std::enable_shared_from_this<Field> {
   const Cyclo& radicand(int j) const { return radicands_.at(static_cast<size_t>(j)); }
   /// prod_{j in S} d_j (cached).
   const Cyclo& radicand_product(RadicalMask s) const;
+  /// sigma_a(d_j) (zeta -> zeta^a) and its sign (it is real: d_j lies in the real subfield), cached.
+  struct Conjugate {
+    Cyclo value;
+    int sign;
+  };
+  const Conjugate& conjugate_radicand(int j, long a) const;
 
   /// Exact square root of x in K: returns true and sets root if x is a square in K (root chosen as the
   /// positive one when x is real and positive). Proofs: a found root is verified by squaring; a non-square is
@@ -55,6 +61,7 @@ class Field : public std::enable_shared_from_this<Field> {
   CyclotomicFieldPtr k_;
   std::vector<Cyclo> radicands_;
   mutable std::map<RadicalMask, Cyclo> products_;
+  mutable std::map<std::pair<int, long>, Conjugate> conjugates_;
   mutable std::mutex mu_;
   std::mutex grow_mu_;
  public:
