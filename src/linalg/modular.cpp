@@ -461,10 +461,21 @@ ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, c
     while (count > 0) {
       if (pool.size() < next + count) pool = choose_primes(f, next + count + 8, 62);
       size_t batch = count;
-      std::vector<ModularImage> im(batch, ModularImage(2, 0, 0));
-      std::vector<char> ok(batch, 0);
+      struct Outcome {  // per prime: usable, and the first nonzero entry of the image if any
+        bool ok = false, nonzero = false;
+        size_t r = 0, c = 0;
+        ulong v = 0;
+      };
+      std::vector<Outcome> out(batch);
       auto work = [&](size_t lo, size_t hi) {
-        for (size_t b = lo; b < hi; ++b) ok[b] = image_of(&im[b], letters, start, post, offset, pool[next + b]);
+        ModularImage im(2, 0, 0);
+        for (size_t b = lo; b < hi; ++b) {
+          out[b].ok = image_of(&im, letters, start, post, offset, pool[next + b]);
+          if (out[b].ok && first_nonzero(im, &out[b].r, &out[b].c)) {
+            out[b].nonzero = true;
+            out[b].v = im(out[b].r, out[b].c);
+          }
+        }
       };
       int th = std::max(1, std::min<int>(opt.threads, static_cast<int>(batch)));
       if (th > 1)
@@ -473,15 +484,14 @@ ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, c
         work(0, batch);
       size_t used = 0;
       for (size_t b = 0; b < batch; ++b) {
-        if (!ok[b]) continue;
+        if (!out[b].ok) continue;
         ++used;
-        size_t r, c;
-        if (first_nonzero(im[b], &r, &c)) {
+        if (out[b].nonzero) {
           res.nonzero = true;
           res.witness = pool[next + b];
-          res.row = r;
-          res.col = c;
-          res.value = im[b](r, c);
+          res.row = out[b].r;
+          res.col = out[b].c;
+          res.value = out[b].v;
           return true;
         }
         res.primes.push_back(pool[next + b]);
