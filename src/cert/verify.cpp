@@ -178,40 +178,53 @@ Matrix letter_matrix(Action& act, const std::vector<int>& labels, int k) {
   return m;
 }
 
-// rho(w) applied to the columns of v, exactly, one letter at a time: each distinct letter's action is
-// tabulated once (from the F-R-F move on basis vectors) as its nonzero entries, then applied plainly.
-Matrix exact_image(Action& act, const std::vector<int>& anyons, const Word& w, const Matrix& v) {
-  struct Entry {
-    size_t row, col;
-    Scalar value;
-  };
-  std::map<std::pair<std::vector<int>, int>, std::vector<Entry>> tables;
-  std::vector<std::vector<Scalar>> cols(v.cols(), std::vector<Scalar>(v.rows(), Scalar(v.field())));
-  for (size_t j = 0; j < v.cols(); ++j)
-    for (size_t i = 0; i < v.rows(); ++i) cols[j][i] = v(i, j);
+struct SparseEntry {
+  size_t row, col;
+  Scalar value;
+};
+struct LetterTable {
+  size_t rows = 0;
+  std::vector<SparseEntry> entries;
+};
+
+// The word's letters as sparse exact tables, in application order (each distinct letter tabulated once).
+std::vector<const LetterTable*> letter_tables(Action& act, const std::vector<int>& anyons, const Word& w,
+                                              std::map<std::pair<std::vector<int>, int>, LetterTable>* store) {
+  std::vector<const LetterTable*> out;
   std::vector<int> labels = anyons;
   for (int l : w.letters) {
     auto key = std::make_pair(labels, l);
-    auto it = tables.find(key);
-    size_t rows = 0;
-    if (it == tables.end()) {
+    auto it = store->find(key);
+    if (it == store->end()) {
       Matrix g = letter_matrix(act, labels, l);
-      std::vector<Entry> e;
+      LetterTable t{g.rows(), {}};
       for (size_t c = 0; c < g.cols(); ++c)
         for (size_t r = 0; r < g.rows(); ++r)
-          if (!g(r, c).is_zero()) e.push_back({r, c, g(r, c)});
-      it = tables.emplace(key, std::move(e)).first;
+          if (!g(r, c).is_zero()) t.entries.push_back({r, c, g(r, c)});
+      it = store->emplace(key, std::move(t)).first;
     }
+    out.push_back(&it->second);
     std::swap(labels[static_cast<size_t>(std::abs(l)) - 1], labels[static_cast<size_t>(std::abs(l))]);
-    rows = act.space(labels).dimension();
+  }
+  if (labels != anyons) reject("the word does not return the anyons to their order");
+  return out;
+}
+
+// rho(w) applied to the columns of v, exactly, one letter at a time: each distinct letter's action is
+// tabulated once (from the F-R-F move on basis vectors) as its nonzero entries, then applied plainly.
+Matrix exact_image(Action& act, const std::vector<int>& anyons, const Word& w, const Matrix& v) {
+  std::map<std::pair<std::vector<int>, int>, LetterTable> store;
+  std::vector<const LetterTable*> tables = letter_tables(act, anyons, w, &store);
+  std::vector<std::vector<Scalar>> cols(v.cols(), std::vector<Scalar>(v.rows(), Scalar(v.field())));
+  for (size_t j = 0; j < v.cols(); ++j)
+    for (size_t i = 0; i < v.rows(); ++i) cols[j][i] = v(i, j);
+  for (const LetterTable* t : tables)
     for (auto& col : cols) {
-      std::vector<Scalar> next(rows, Scalar(v.field()));
-      for (const Entry& e : it->second)
+      std::vector<Scalar> next(t->rows, Scalar(v.field()));
+      for (const SparseEntry& e : t->entries)
         if (!col[e.col].is_zero()) next[e.row] += e.value * col[e.col];
       col = std::move(next);
     }
-  }
-  if (labels != anyons) reject("the word does not return the anyons to their order");
   Matrix out(v.field(), v.rows(), v.cols());
   for (size_t j = 0; j < v.cols(); ++j)
     for (size_t i = 0; i < v.rows(); ++i) out(i, j) = cols[j][i];
@@ -499,41 +512,9 @@ void coordinate_leakage_bounded(arb_t leak, const acb_mat_t mid, mag_srcptr err,
   arb_clear(s);
   arb_clear(t);
 }
-// ---- Modular re-check (section 7): the checker's own letter tables (from the F-R-F action), its own reduction
-// mod p and propagation, its own conjugate enclosures. Shared with the producer: the field (Scalar::ball_at),
-// make_prime (validates a prime record), embeddings_up_to_conjugation and order_multiplier (linalg/modular.hpp).
-
-struct SparseEntry {
-  size_t row, col;
-  Scalar value;
-};
-struct LetterTable {
-  size_t rows = 0;
-  std::vector<SparseEntry> entries;
-};
-
-// The word's letters as sparse exact tables, in application order (each distinct letter tabulated once).
-std::vector<const LetterTable*> letter_tables(Action& act, const std::vector<int>& anyons, const Word& w,
-                                              std::map<std::pair<std::vector<int>, int>, LetterTable>* store) {
-  std::vector<const LetterTable*> out;
-  std::vector<int> labels = anyons;
-  for (int l : w.letters) {
-    auto key = std::make_pair(labels, l);
-    auto it = store->find(key);
-    if (it == store->end()) {
-      Matrix g = letter_matrix(act, labels, l);
-      LetterTable t{g.rows(), {}};
-      for (size_t c = 0; c < g.cols(); ++c)
-        for (size_t r = 0; r < g.rows(); ++r)
-          if (!g(r, c).is_zero()) t.entries.push_back({r, c, g(r, c)});
-      it = store->emplace(key, std::move(t)).first;
-    }
-    out.push_back(&it->second);
-    std::swap(labels[static_cast<size_t>(std::abs(l)) - 1], labels[static_cast<size_t>(std::abs(l))]);
-  }
-  if (labels != anyons) reject("the word does not return the anyons to their order");
-  return out;
-}
+// ---- Modular re-check (section 7): the letter tables above, the checker's own reduction mod p and propagation,
+// its own conjugate enclosures. Shared with the producer: the field (Scalar::ball_at), make_prime (validates a
+// prime record), embeddings_up_to_conjugation and order_multiplier (linalg/modular.hpp).
 
 // Image of x at (p, zeta -> w, sqrt(d_j) -> roots[j]); rejects when p divides a denominator.
 ulong mod_image(const Scalar& x, const ModularPrime& q, const nmod_t& m) {
