@@ -207,11 +207,9 @@ void program_portable(std::int64_t* y, const std::int64_t* x, long k, const Spar
   }
 }
 
-}  // namespace
-
-void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) { apply_into_program(out, g, x); }
-
-void apply_into_program(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool allow_vector) {
+// Shape, buffer and coefficient bound of y = g x (checks that g composes with x and y is not x). The buffer is
+// zero-filled unless every destination is written (keeps its allocation when the size repeats).
+SmallBlock& prepare_output(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool zero_fill) {
   if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
   if (out == &x) throw MathError("apply_into: output aliases the operand");
   SmallBlock& y = *out;
@@ -220,10 +218,18 @@ void apply_into_program(SmallBlock* out, const SparseLetter& g, const SmallBlock
   y.n = x.n;
   y.masks = x.masks;
   const size_t size = static_cast<size_t>(x.masks * g.rows() * x.k * x.n);
-  if (g.covers_all()) y.a.resize(size);  // every destination row is written
-  else y.a.assign(size, 0);
-  y.bound = -1;
-  if (x.bound >= 0) y.bound = x.bound * g.beta() * (1 + 1e-12);
+  if (zero_fill) y.a.assign(size, 0);
+  else y.a.resize(size);
+  y.bound = x.bound >= 0 ? x.bound * g.beta() * (1 + 1e-12) : -1;
+  return y;
+}
+
+}  // namespace
+
+void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) { apply_into_program(out, g, x); }
+
+void apply_into_program(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool allow_vector) {
+  SmallBlock& y = prepare_output(out, g, x, !g.covers_all());
 #ifdef ZB_HAVE_AVX512_KERNEL
   if (allow_vector && have_avx512()) {
     program_avx512(y.a.data(), x.a.data(), x.k, g);
@@ -236,17 +242,8 @@ void apply_into_program(SmallBlock* out, const SparseLetter& g, const SmallBlock
 }
 
 void apply_into_entries(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
-  if (g.cols() != x.rows) throw MathError("letter does not compose with the operand");
-  if (out == &x) throw MathError("apply_into: output aliases the operand");
-  SmallBlock& y = *out;
-  y.rows = g.rows();
-  y.k = x.k;
-  y.n = x.n;
-  y.masks = x.masks;
-  y.a.assign(static_cast<size_t>(x.masks * g.rows() * x.k * x.n), 0);  // keeps the buffer when the size repeats
-  y.bound = -1;
+  SmallBlock& y = prepare_output(out, g, x, true);
   const long k = x.k, n = x.n;
-  if (x.bound >= 0) y.bound = x.bound * g.beta() * (1 + 1e-12);
   for (const auto& t : g.terms()) {
     std::int64_t* dst = y.a.data() + ((t.to * y.rows + t.i) * k) * n;
     const std::int64_t* src = x.a.data() + ((t.from * x.rows + t.c) * k) * n;
