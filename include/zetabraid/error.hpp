@@ -32,4 +32,10 @@ class MathError : public std::runtime_error {
   explicit MathError(const std::string& what) : std::runtime_error(what) {}
 };
 
+/// A broken internal invariant: a bug in zetabraid, never the user's input (exit 4).
+class InternalError : public std::logic_error {
+ public:
+  explicit InternalError(const std::string& what) : std::logic_error(what) {}
+};
+
 }  // namespace zb

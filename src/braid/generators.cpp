@@ -67,7 +67,7 @@ Matrix BraidGenerators::build(const std::vector<int>& anyons, int k) {
       int x2 = t[1];
       Scalar v = inv ? r_of(c, b, x2).inverse() : r_of(b, c, x2);
       long row = to.index_of(nt);
-      if (row < 0) throw MathError("internal: s1 image tree missing");
+      if (row < 0) throw InternalError("s1 image tree missing");
       g(static_cast<size_t>(row), col) = v;
       continue;
     }
@@ -75,7 +75,7 @@ Matrix BraidGenerators::build(const std::vector<int>& anyons, int k) {
     const FMatrix& f1 = fcache_.get(u, b, c, d);
     const FMatrix& f2 = fcache_.get(u, c, b, d);
     long er = f1.row_of(e);
-    if (er < 0) throw MathError("internal: intermediate charge not admissible in F");
+    if (er < 0) throw InternalError("intermediate charge not admissible in F");
     for (size_t ep = 0; ep < f2.rows.size(); ++ep) {
       Scalar acc(m.field);
       for (size_t fj = 0; fj < f1.cols.size(); ++fj) {
@@ -92,7 +92,7 @@ Matrix BraidGenerators::build(const std::vector<int>& anyons, int k) {
       if (acc.is_zero()) continue;
       nt[i - 1] = f2.rows[ep];
       long row = to.index_of(nt);
-      if (row < 0) throw MathError("internal: image tree missing from the target space");
+      if (row < 0) throw InternalError("image tree missing from the target space");
       g(static_cast<size_t>(row), col) = acc;
     }
   }

@@ -178,7 +178,7 @@ SparseMatrix charge_projector(const FusionSpace& space, const ChargeGroup& g) {
     // inner tree of k: (u, x_i, ..., x_{j-1}, v)
     std::vector<int> it_tree(t.begin() + static_cast<long>(i) - 2, t.begin() + static_cast<long>(j));
     long col = w.index_of(it_tree);
-    if (col < 0) throw MathError("internal: inner tree missing");
+    if (col < 0) throw InternalError("inner tree missing");
     std::vector<int> nt = t;
     for (size_t r = 0; r < w.dimension(); ++r) {
       const Scalar& val = pr(r, static_cast<size_t>(col));
@@ -186,7 +186,7 @@ SparseMatrix charge_projector(const FusionSpace& space, const ChargeGroup& g) {
       const std::vector<int>& rt = w.tree(r);
       for (size_t q = 0; q < rt.size(); ++q) nt[i - 2 + q] = rt[q];
       long row = space.index_of(nt);
-      if (row < 0) throw MathError("internal: projected tree missing");
+      if (row < 0) throw InternalError("projected tree missing");
       p.cols[k].emplace_back(static_cast<size_t>(row), val);
     }
     std::sort(p.cols[k].begin(), p.cols[k].end(), [](const auto& a, const auto& b) { return a.first < b.first; });

@@ -6,7 +6,7 @@
 #include <thread>
 #include <unordered_map>
 
-#include "fork_join.hpp"
+#include "zetabraid/detail/parallel.hpp"
 #include "zetabraid/error.hpp"
 
 namespace zb {
@@ -479,7 +479,7 @@ ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, c
       };
       int th = std::max(1, std::min<int>(opt.threads, static_cast<int>(batch)));
       if (th > 1)
-        detail::fork_join(true, [&] { work(0, batch / 2); }, [&] { work(batch / 2, batch); });
+        fork_join(true, [&] { work(0, batch / 2); }, [&] { work(batch / 2, batch); });
       else
         work(0, batch);
       size_t used = 0;

@@ -1,7 +1,7 @@
 // Exact word products: product tree over integer-polynomial matrices (see word_product.hpp).
 #include "zetabraid/linalg/word_product.hpp"
 
-#include "fork_join.hpp"
+#include "zetabraid/detail/parallel.hpp"
 
 #include <fmt/format.h>
 
@@ -161,7 +161,7 @@ class ExactTree {
       }
       size_t mid = lo + (hi - lo) / 2;
       PolyMatrix left, right;
-      detail::fork_join(depth < spawn_depth && hi - lo >= 32, [&] { left = node(lo, mid, depth + 1); },
+      fork_join(depth < spawn_depth && hi - lo >= 32, [&] { left = node(lo, mid, depth + 1); },
                         [&] { right = node(mid, hi, depth + 1); });
       PolyMatrix res = PolyMatrix::mul(right, left, t.ctx_);  // later letters act last (on the left)
       if (shared) {

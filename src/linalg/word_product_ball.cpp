@@ -14,7 +14,7 @@
 #include "zetabraid/error.hpp"
 #include "zetabraid/linalg/word_product.hpp"
 
-#include "fork_join.hpp"
+#include "zetabraid/detail/parallel.hpp"
 
 namespace zb {
 
@@ -99,7 +99,7 @@ class BallTree {
     if (hi - lo == 1) return leaf(runs_[lo]);
     size_t mid = lo + (hi - lo) / 2;
     BallPtr left, right;
-    detail::fork_join(depth < spawn_depth_ && hi - lo >= 32, [&] { left = node(lo, mid, depth + 1); },
+    fork_join(depth < spawn_depth_ && hi - lo >= 32, [&] { left = node(lo, mid, depth + 1); },
                       [&] { right = node(mid, hi, depth + 1); });
     auto out = std::make_unique<BallMat>(right->rows(), left->cols());
     acb_mat_mul(out->m, right->m, left->m, prec_);

@@ -65,7 +65,7 @@ struct QuantumIntegers {
     return Scalar(F, base) * rad;
   }
   void add_fact(std::vector<int>& e, int m, int sign) {
-    if (m > k + 1) throw MathError("internal: quantum factorial beyond [k+1]! in a radicand");
+    if (m > k + 1) throw InternalError("quantum factorial beyond [k+1]! in a radicand");
     for (int n = 2; n <= m; ++n) e[static_cast<size_t>(n)] += sign;
   }
   // Delta^2(a,b,c) as exponents (arguments are twice the spins).
@@ -175,7 +175,7 @@ Model make_su2(int k, Su2Gauge gauge, bool even_only) {
         int a = spins[ia], b = spins[ib], c = spins[ic];
         long x = static_cast<long>(c) * (c + 2) - static_cast<long>(a) * (a + 2) - static_cast<long>(b) * (b + 2);
         // q^(x/4) = zeta^(qstep x / 4); qstep x is divisible by 4 (see the parity argument in the docs).
-        if ((qstep * x) % 4 != 0) throw MathError("internal: R-symbol exponent not in the field");
+        if ((qstep * x) % 4 != 0) throw InternalError("R-symbol exponent not in the field");
         Scalar r = Scalar::zeta_power(m.field, qstep * x / 4);
         if (((a + b - c) / 2) % 2) r = -r;
         m.r_given.insert({ia, ib, ic});
