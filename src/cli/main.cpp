@@ -1,49 +1,16 @@
 // zetabraid command-line front end: option parsing and dispatch only; the mathematics lives in the library.
 #include <fmt/format.h>
-#include <sys/stat.h>
-#include <unistd.h>
 
 #include <cstdio>
-#include <filesystem>
-#include <fstream>
 #include <iostream>
 
 #include "commands.hpp"
 #include "zetabraid/error.hpp"
+#include "zetabraid/io/output_file.hpp"
 
 namespace zb::cli {
 
-void write_file_atomic(const std::string& path, const std::string& text) {
-  if (path == "-") {
-    std::cout << text << std::flush;
-    return;
-  }
-  namespace fs = std::filesystem;
-  fs::path target(path);
-  fs::path dir = target.parent_path().empty() ? fs::path(".") : target.parent_path();
-  std::string tmpl = (dir / (".zetabraid-tmp-XXXXXX")).string();
-  std::vector<char> buf(tmpl.begin(), tmpl.end());
-  buf.push_back('\0');
-  int fd = mkstemp(buf.data());
-  if (fd < 0) throw InputError("cannot create a temporary file in " + dir.string());
-  mode_t mask = umask(0);  // mkstemp creates 0600; give the output the usual permissions
-  umask(mask);
-  fchmod(fd, 0666 & ~mask);
-  std::string tmp(buf.data());
-  FILE* f = fdopen(fd, "wb");
-  bool ok = f && std::fwrite(text.data(), 1, text.size(), f) == text.size();
-  ok = (f && std::fclose(f) == 0) && ok;
-  if (!ok) {
-    std::remove(tmp.c_str());
-    throw InputError("cannot write " + path);
-  }
-  std::error_code ec;
-  fs::rename(tmp, target, ec);
-  if (ec) {
-    std::remove(tmp.c_str());
-    throw InputError("cannot write " + path + ": " + ec.message());
-  }
-}
+void write_file_atomic(const std::string& path, const std::string& text) { zb::write_file_atomic(path, text); }
 
 }  // namespace zb::cli
 
