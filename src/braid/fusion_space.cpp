@@ -2,9 +2,11 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cctype>
 
 #include "zetabraid/error.hpp"
+#include "zetabraid/io/input_file.hpp"
 
 namespace zb {
 
@@ -13,6 +15,8 @@ FusionSpace::FusionSpace(const Model& model, std::vector<int> anyons, int total)
   const int nl = model.label_count();
   const size_t n = anyons_.size();
   if (n == 0) throw InputError("a fusion space needs at least one anyon");
+  if (n > kMaxAnyons)
+    throw ResourceError(fmt::format("{} anyons exceed the limit of {} anyons in a fusion space", n, kMaxAnyons));
   for (int a : anyons_)
     if (a < 0 || a >= nl) throw InputError("anyon label index out of range");
   if (total < 0 || total >= nl) throw InputError("total charge label index out of range");
@@ -33,6 +37,25 @@ FusionSpace::FusionSpace(const Model& model, std::vector<int> anyons, int total)
           throw InputError(fmt::format("fusion multiplicity N_{{{} {}}}^{} = {} > 1 is not supported yet",
                                        model.labels[x], model.labels[a], model.labels[y], model.fusion(x, a, y)));
   if (!reach[0][static_cast<size_t>(anyons_[0])]) return;
+  // The dimension, counted (saturating) before any basis vector is stored: paths[x] = number of trees of the
+  // first k+1 anyons ending in charge x that can still reach `total`.
+  {
+    std::vector<size_t> paths(static_cast<size_t>(nl), 0), nxt(static_cast<size_t>(nl), 0);
+    paths[static_cast<size_t>(anyons_[0])] = 1;
+    for (size_t k = 1; k < n; ++k) {
+      std::fill(nxt.begin(), nxt.end(), 0);
+      for (int x = 0; x < nl; ++x) {
+        if (paths[static_cast<size_t>(x)] == 0) continue;
+        for (int y = 0; y < nl; ++y)
+          if (reach[k][static_cast<size_t>(y)] && model.fusion(x, anyons_[k], y) > 0)
+            nxt[static_cast<size_t>(y)] =
+                std::min(nxt[static_cast<size_t>(y)] + paths[static_cast<size_t>(x)], kMaxDimension + 1);
+      }
+      paths.swap(nxt);
+    }
+    if (paths[static_cast<size_t>(total)] > kMaxDimension)
+      throw ResourceError(fmt::format("fusion space dimension exceeds {} (limit of exact fusion spaces)", kMaxDimension));
+  }
   std::vector<int> cur(n);
   cur[0] = anyons_[0];
   // depth-first enumeration in lexicographic order
@@ -124,7 +147,7 @@ std::vector<int> parse_anyons(const Model& model, const std::string& text) {
     int i = model.label_index(tok);
     if (i < 0)
       throw InputError(fmt::format("anyon {} (column {}): unknown label '{}' (labels of model {}: {})", pos, p + 1,
-                                   tok, model.name, fmt::join(model.labels, ", ")));
+                                   printable(tok), printable(model.name), printable(fmt::format("{}", fmt::join(model.labels, ", ")))));
     out.push_back(i);
     p = q;
   }

@@ -8,6 +8,7 @@
 #include <sstream>
 
 #include "zetabraid/error.hpp"
+#include "zetabraid/io/input_file.hpp"
 #include "zetabraid/field/expression.hpp"
 
 namespace zb {
@@ -292,26 +293,26 @@ Subspace subspace_from_text(const FusionSpace& space, const std::string& text, c
       std::string tok = line.substr(p, q == std::string::npos ? std::string::npos : q - p);
       if (tok.find_first_not_of(" \t\r") == std::string::npos)
         throw InputError(fmt::format("{}:{}: column {}: empty entry (expected exact expressions separated by ',')",
-                                     name, lineno, p + 1));
+                                     printable(name), lineno, p + 1));
       try {
         v.push_back(parse_expression(tok, f));
       } catch (const ExpressionError& e) {
-        throw InputError(fmt::format("{}:{}: column {}: {}", name, lineno, p + e.column(), e.what()));
+        throw InputError(fmt::format("{}:{}: column {}: {}", printable(name), lineno, p + e.column(), e.message()));
       }
       if (q == std::string::npos) break;
       p = q + 1;
     }
     if (v.size() != dim)
-      throw InputError(fmt::format("{}:{}: vector has {} entries, the fusion space has dimension {}", name, lineno,
+      throw InputError(fmt::format("{}:{}: vector has {} entries, the fusion space has dimension {}", printable(name), lineno,
                                    v.size(), dim));
     vecs.push_back(std::move(v));
   }
-  if (vecs.empty()) throw InputError(fmt::format("{}: no basis vectors", name));
+  if (vecs.empty()) throw InputError(fmt::format("{}: no basis vectors", printable(name)));
   Matrix b(f, dim, vecs.size());
   for (size_t j = 0; j < vecs.size(); ++j)
     for (size_t i = 0; i < dim; ++i) b(i, j) = vecs[j][i];
   if (b.rank() != vecs.size())
-    throw InputError(fmt::format("{}: the {} basis vectors are linearly dependent", name, vecs.size()));
+    throw InputError(fmt::format("{}: the {} basis vectors are linearly dependent", printable(name), vecs.size()));
   Subspace s{std::move(b), false, {}};
   return s;
 }

@@ -10,7 +10,9 @@
 #include "zetabraid/braid/checks.hpp"
 #include "zetabraid/braid/invariant.hpp"
 #include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/detail/parallel.hpp"
 #include "zetabraid/error.hpp"
+#include "zetabraid/io/input_file.hpp"
 #include "zetabraid/model/load.hpp"
 
 namespace zb::cli {
@@ -327,10 +329,15 @@ void add_braid_commands(CLI::App& app, Action& action) {
         if (!o->keep.empty() && !o->keep_file.empty()) throw InputError("give --keep or --keep-file, not both");
         CertifyOptions opt;
         opt.method = parse_method(o->method);
+        if (c->count("--precision") && (o->precision < 16 || o->precision > opt.max_precision))
+          throw InputError(fmt::format("--precision must be {}..{} bits, got {}", 16, opt.max_precision, o->precision));
         opt.precision = o->precision;
-        if (o->threads < 0 || o->threads > 64) throw InputError("--threads must be 0..64 (0: all cores, at most 8)");
-        opt.threads = o->threads ? o->threads
-                                 : static_cast<int>(std::clamp(std::thread::hardware_concurrency(), 1u, 8u));
+        if (c->count("--threads") && (o->threads < 1 || o->threads > kMaxThreads))
+          throw InputError(fmt::format("--threads must be 1..{} (omit it for all cores, at most {})", kMaxThreads,
+                                       kMaxDefaultThreads));
+        opt.threads = thread_count(o->threads);
+        if (c->count("--out") && o->out.empty()) throw InputError("--out needs a file name");
+        if (c->count("--export-gp") && o->gp.empty()) throw InputError("--export-gp needs a file name");
         Model m = load_model(o->model);
         std::vector<int> an = parse_anyons(m, o->anyons);
         int total = parse_label(m, o->total, "total charge");
@@ -347,7 +354,7 @@ void add_braid_commands(CLI::App& app, Action& action) {
           kind = "charges";
           spec = keep_canonical(m, groups);
         } else if (!o->keep_file.empty()) {
-          keep = subspace_from_text(sp, read_file_bytes(o->keep_file), o->keep_file);
+          keep = subspace_from_text(sp, read_input_file(o->keep_file, kMaxKeepFileBytes, "keep file"), o->keep_file);
           kind = "vectors";
         }
         CertifyResult r = certify(g, an, keep, w, opt);

@@ -18,6 +18,8 @@ class FusionSpace {
  public:
   /// Largest dimension built; beyond it ResourceError.
   static constexpr size_t kMaxDimension = 20000;
+  /// Most anyons in one fusion space (braid checks cost ~ anyons^2 generator pairs); beyond it ResourceError.
+  static constexpr size_t kMaxAnyons = 256;
 
   /// The space of the given anyons (label indices) with total charge `total`; may be zero-dimensional.
   FusionSpace(const Model& model, std::vector<int> anyons, int total);

@@ -21,11 +21,14 @@ namespace zb {
 class ExpressionError : public InputError {
  public:
   ExpressionError(const std::string& what, size_t column)
-      : InputError("column " + std::to_string(column) + ": " + what), column_(column) {}
+      : InputError("column " + std::to_string(column) + ": " + what), column_(column), message_(what) {}
   size_t column() const { return column_; }
+  /// The message without the "column C: " prefix (for callers that give their own location).
+  const std::string& message() const { return message_; }
 
  private:
   size_t column_;
+  std::string message_;
 };
 
 struct ExpressionLimits {
