@@ -241,7 +241,7 @@ std::vector<detail::SparseLetter> kernels(const std::vector<PolyMatrix>& leaves,
 // appends the block products (application order) to out.
 void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, size_t lo, size_t hi,
                   const std::vector<detail::SparseLetter>& kern, const std::vector<PolyMatrix>& leaves,
-                  const PolyContext& ctx) {
+                  const PolyContext& ctx, LetterKernel variant) {
   const long n = ctx.degree(), masks = 1L << ctx.field()->radicand_count();
   bool empty = true;
   detail::SmallBlock acc, spare;
@@ -259,7 +259,7 @@ void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, 
         continue;
       }
     }
-    detail::apply_into(&spare, g, acc);
+    detail::apply_into(&spare, g, acc, variant);
     std::swap(acc, spare);
     empty = false;
   }
@@ -297,7 +297,7 @@ PolyMatrix exact_product(const std::vector<const Matrix*>& letters, const PolyCo
       size_t hi = seq.size() * static_cast<size_t>(p + 1) / static_cast<size_t>(parts);
       auto job = [&, p, lo, hi] {
         try {
-          small_blocks(&blocks[static_cast<size_t>(p)], seq, lo, hi, kern, c.leaves, ctx);
+          small_blocks(&blocks[static_cast<size_t>(p)], seq, lo, hi, kern, c.leaves, ctx, opt.kernel);
         } catch (...) {
           err[static_cast<size_t>(p)] = std::current_exception();
         }
@@ -381,7 +381,7 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
           is_small = false;
           break;
         }
-        detail::apply_into(&spare, g, small);
+        detail::apply_into(&spare, g, small, opt.kernel);
         std::swap(small, spare);
         ++x;
       }
@@ -407,7 +407,7 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
         while (x < total) {
           const detail::SparseLetter& g = kern[c.tokens[x].leaf];
           if (!detail::fits_small(g, blk)) break;
-          detail::apply_into(&spare, g, blk);
+          detail::apply_into(&spare, g, blk, opt.kernel);
           std::swap(blk, spare);
           ++x;
           ++used;

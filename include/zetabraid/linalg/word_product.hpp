@@ -13,11 +13,28 @@
 //  * ball: see word_product_ball below.
 //  * modular images: linalg/modular.hpp.
 #pragma once
+#include <string>
 #include <vector>
 
 #include "zetabraid/linalg/matrix.hpp"
 
 namespace zb {
+
+/// The int64 sparse-letter kernels (src/linalg/sparse_kernel.cpp), as named variants with one dispatcher:
+///  * kEntries: entry by entry over each letter's multiplication matrices (the reference);
+///  * kPortable: the row program (+1 / -1 / other multipliers per destination row) in plain C++;
+///  * kAvx2: the row program, 4 columns per 256-bit vector (two vectors per pass);
+///  * kAvx512: the row program, 8 columns per 512-bit vector.
+/// kAuto picks kAvx512, else kAvx2, else kPortable, by what the processor supports. All give identical results.
+enum class LetterKernel { kAuto, kEntries, kPortable, kAvx2, kAvx512 };
+/// "auto", "entries", "portable", "avx2", "avx512".
+const char* letter_kernel_name(LetterKernel k);
+/// Inverse of letter_kernel_name; false for an unknown name.
+bool letter_kernel_from_name(const std::string& name, LetterKernel* out);
+/// Whether the processor (and this build) can run the variant (kAuto, kEntries and kPortable always can).
+bool letter_kernel_available(LetterKernel k);
+/// The variant that runs for k: kAuto resolved for this processor, others as they are.
+LetterKernel letter_kernel_resolve(LetterKernel k);
 
 struct ProductOptions {
   /// Worker threads for the product tree (1 = none). Results are identical at any thread count.
@@ -31,6 +48,8 @@ struct ProductOptions {
   /// Use the int64 sparse-letter kernel (integral letters, <= 4 radicands) for blocks of letters while a
   /// rigorous coefficient bound stays below 2^62 (off only for tests and measurements).
   bool small_kernel = true;
+  /// Which int64 letter kernel runs (a forced variant the processor lacks: MathError when it is first used).
+  LetterKernel kernel = LetterKernel::kAuto;
   /// word_product_columns: once coefficients are long, apply int64 block products of letters instead of single
   /// letters (off only for tests and measurements).
   bool column_blocks = true;
