@@ -80,14 +80,13 @@ bool contains_exact(const acb_mat_t b, const Matrix& exact) {
 
 std::vector<const Matrix*> fibonacci_word(BraidGenerators& g, const std::vector<int>& anyons, size_t len, unsigned seed) {
   std::mt19937_64 rng(seed);
-  Word w;
+  std::vector<int> wl;
   int strands = static_cast<int>(anyons.size());
   for (size_t i = 0; i < len; ++i) {
     int k = 1 + static_cast<int>(rng() % static_cast<unsigned>(strands - 1));
-    w.letters.push_back(rng() % 2 ? k : -k);
+    wl.push_back(rng() % 2 ? k : -k);
   }
-  w.columns.assign(len, 0);
-  return g.letters(anyons, w);
+  return g.letters(anyons, Word::from_letters(wl));
 }
 
 }  // namespace
