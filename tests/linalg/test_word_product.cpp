@@ -155,7 +155,7 @@ TEST_CASE("columns engine on a big sparse space equals the left-to-right product
   ProductOptions tree;
   tree.columns_ratio = 1000;  // forces the product tree, then times start
   CHECK(word_product_columns(w, start, tree) == naive);
-  CHECK(word_product_columns({}, start) == start);
+  CHECK(word_product_columns(std::vector<const Matrix*>{}, start) == start);
 }
 
 TEST_CASE("identical results at any thread count") {
