@@ -2,6 +2,7 @@
 // straightforward exact PARI/GP product, each as a time ratio to complex double in the same process.
 // Run through scripts/bench-words. Usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS]
 //                                        [--anyons N] [--length L] [--no-gp] [--threads T]
+//                                        [--kernel auto|entries|portable|avx2|avx512]
 //
 // Cases: 6 anyons, total charge 1 (the two-qubit encoding, dimension 5): the full 5x5 product.
 //        10 and 14 anyons, total charge 1 (dimensions 34 and 233): 4 columns (the first four basis vectors)
@@ -167,14 +168,13 @@ double gp_time(const std::string& gp, const Field& f, const std::vector<const Ma
 
 std::vector<const Matrix*> random_word(BraidGenerators& g, const std::vector<int>& anyons, size_t len, unsigned seed) {
   std::mt19937_64 rng(seed);
-  Word w;
+  std::vector<int> wl;
   int strands = static_cast<int>(anyons.size());
   for (size_t i = 0; i < len; ++i) {
     int k = 1 + static_cast<int>(rng() % static_cast<unsigned>(strands - 1));
-    w.letters.push_back(rng() % 2 ? k : -k);
+    wl.push_back(rng() % 2 ? k : -k);
   }
-  w.columns.assign(len, 0);
-  return g.letters(anyons, w);
+  return g.letters(anyons, Word::from_letters(wl));
 }
 
 std::string ratio(double t, double base) {
@@ -187,7 +187,7 @@ std::string ratio(double t, double base) {
 
 int main(int argc, char** argv) {
   if (argc < 2) {
-    std::fprintf(stderr, "usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS] [--anyons N] [--length L] [--no-gp] [--threads T]\n");
+    std::fprintf(stderr, "usage: zb_bench_words MODEL_FILE [--quick] [--gp PATH] [--gp-limit SECONDS] [--anyons N] [--length L] [--no-gp] [--threads T] [--kernel NAME]\n");
     return 2;
   }
   std::string gp = "gp";
@@ -197,6 +197,7 @@ int main(int argc, char** argv) {
   size_t only_len = 0;    // --length L: only that length
   bool no_gp = false;     // --no-gp: skip the PARI/GP runs
   int threads = 2;        // --threads T: also time the exact engine with T threads (1: skip)
+  LetterKernel kernel = LetterKernel::kAuto;  // --kernel NAME: force an int64 letter kernel variant
   for (int i = 2; i < argc; ++i) {
     std::string a = argv[i];
     if (a == "--quick") quick = true;
@@ -206,7 +207,19 @@ int main(int argc, char** argv) {
     else if (a == "--length" && i + 1 < argc) only_len = static_cast<size_t>(std::atol(argv[++i]));
     else if (a == "--no-gp") no_gp = true;
     else if (a == "--threads" && i + 1 < argc) threads = std::atoi(argv[++i]);
+    else if (a == "--kernel" && i + 1 < argc) {
+      if (!letter_kernel_from_name(argv[++i], &kernel)) {
+        std::fprintf(stderr, "unknown kernel '%s' (auto, entries, portable, avx2, avx512)\n", argv[i]);
+        return 2;
+      }
+      if (!letter_kernel_available(kernel)) {
+        std::fprintf(stderr, "kernel '%s' is not available on this processor\n", argv[i]);
+        return 2;
+      }
+    }
   }
+  ProductOptions po1;
+  po1.kernel = kernel;
   Model model = load_model(argv[1]);
   int one = model.label_index("1"), tau = model.label_index("t");
   BraidGenerators gens(model, one);
@@ -219,7 +232,9 @@ int main(int argc, char** argv) {
   int gp_checked = 0;  // seconds: skip an exact run predicted to take longer
 
   fmt::print("Fibonacci anyons, total charge 1; times as ratios to complex double (same process, same word).\n");
-  fmt::print("modular prime p = {} (zeta -> {}, sqrt -> {})\n\n", q.p, q.zeta, q.roots.empty() ? 0 : q.roots[0]);
+  fmt::print("modular prime p = {} (zeta -> {}, sqrt -> {})\n", q.p, q.zeta, q.roots.empty() ? 0 : q.roots[0]);
+  fmt::print("int64 letter kernel: {}{}\n\n", letter_kernel_name(letter_kernel_resolve(kernel)),
+             kernel == LetterKernel::kAuto ? " (chosen for this processor)" : " (forced)");
   fmt::print("{:>3} {:>4} {:>4} {:>7} | {:>11} | {:>7} {:>7} {:>7} {:>9} {:>5} {:>5} {:>7} {:>12} | {:>9} {:>9} {:>9}\n",
              "n", "dim", "cols", "L", "double [s]", "exact", fmt::format("ex {}th", threads), "ival", "ival bits", "prec",
              "runs", "mod p", "proof (pr.)", "GP/double", "GP/exact", fmt::format("GP/ex{}t", threads));
@@ -253,7 +268,7 @@ int main(int argc, char** argv) {
       std::unique_ptr<Matrix> exact;
       if (!skip) {
         t_exact = time_it([&] {
-          Matrix r = n == 6 ? word_product(w) : word_product_columns(w, start);
+          Matrix r = n == 6 ? word_product(w, po1) : word_product_columns(w, start, po1);
           sink = sink + static_cast<double>(r.rows());
           if (!exact) exact = std::make_unique<Matrix>(std::move(r));
         }, 20);
@@ -263,7 +278,7 @@ int main(int argc, char** argv) {
       // The same exact product with `threads` worker threads (identical result; wall-clock time).
       double t_exact_mt = -1;
       if (!skip && threads > 1) {
-        ProductOptions po;
+        ProductOptions po = po1;
         po.threads = threads;
         t_exact_mt = time_it([&] {
           Matrix r = n == 6 ? word_product(w, po) : word_product_columns(w, start, po);

@@ -22,10 +22,7 @@ bool BraidReport::ok() const {
 namespace {
 
 Matrix product(BraidGenerators& gens, const std::vector<int>& anyons, const std::vector<int>& letters) {
-  Word w;
-  w.letters = letters;
-  w.columns.assign(letters.size(), 0);
-  return word_product(gens.letters(anyons, w));
+  return word_product(gens.letters(anyons, Word::from_letters(letters)));
 }
 
 std::string word_text(const std::vector<int>& l) {

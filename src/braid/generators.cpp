@@ -110,16 +110,16 @@ std::vector<const Matrix*> BraidGenerators::letters(const std::vector<int>& anyo
   if (uniform) {
     // label sequence never changes: one matrix per distinct letter
     std::map<int, const Matrix*> seen;
-    for (int l : w.letters) {
+    w.for_each_letter([&](int l, std::uint32_t) {
       auto it = seen.find(l);
       if (it == seen.end()) it = seen.emplace(l, &matrix(cur, l)).first;
       out.push_back(it->second);
-    }
+    });
   } else {
-    for (int l : w.letters) {
+    w.for_each_letter([&](int l, std::uint32_t) {
       out.push_back(&matrix(cur, l));
       cur = swapped(cur, l);
-    }
+    });
   }
   if (end) *end = cur;
   return out;

@@ -44,7 +44,8 @@ LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands
   std::vector<int> pos(static_cast<size_t>(n));
   std::iota(pos.begin(), pos.end(), 0);
   std::vector<std::pair<int, int>> crossings;  // strands crossing at each letter
-  for (int l : w.letters) {
+  const std::vector<int> letters = w.expand();
+  for (int l : letters) {
     size_t i = static_cast<size_t>(std::abs(l));
     crossings.emplace_back(pos[i - 1], pos[i]);
     std::swap(pos[i - 1], pos[i]);
@@ -68,7 +69,7 @@ LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands
   for (size_t k = 0; k < w.size(); ++k) {
     auto [x, y] = crossings[k];
     if (comp[static_cast<size_t>(x)] == comp[static_cast<size_t>(y)])
-      out.self_writhe[static_cast<size_t>(comp[static_cast<size_t>(x)])] += w.letters[k] > 0 ? 1 : -1;
+      out.self_writhe[static_cast<size_t>(comp[static_cast<size_t>(x)])] += letters[k] > 0 ? 1 : -1;
   }
   for (int c = 0; c < model.label_count(); ++c) {
     BraidGenerators gens(model, c);
@@ -78,8 +79,7 @@ LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands
     if (w.size() == 0) {
       tr = Scalar(model.field, static_cast<long>(sp.dimension()));
     } else {
-      std::vector<const Matrix*> letters = gens.letters(strands, w);
-      tr = word_product(letters).trace();
+      tr = word_product(gens.letters(strands, w)).trace();
     }
     out.quantum_trace += quantum_dimension(model, c) * tr;
   }

@@ -105,9 +105,9 @@ Matrix inner_projector(const Model& model, int u, const std::vector<int>& block,
   BraidGenerators gens(model, v);
   const FusionSpace& w = gens.space(labels);
   const size_t m = block.size();
-  Word beta;
-  for (size_t k = 1; k <= m; ++k) beta.letters.push_back(static_cast<int>(k));
-  beta.columns.assign(m, 0);
+  std::vector<int> up;
+  for (size_t k = 1; k <= m; ++k) up.push_back(static_cast<int>(k));
+  const Word beta = Word::from_letters(up);
   std::vector<int> end;
   std::vector<const Matrix*> fwd = gens.letters(labels, beta, &end);
   const FusionSpace& w2 = gens.space(end);

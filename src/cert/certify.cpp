@@ -6,6 +6,7 @@
 #include <cmath>
 
 #include "zetabraid/error.hpp"
+#include "zetabraid/braid/word_index.hpp"
 #include "zetabraid/linalg/word_product.hpp"
 
 namespace zb {
@@ -324,7 +325,7 @@ namespace {
 
 // Verdict from modular images of the leak block (method modular). With prove_zero off only the filter runs:
 // returns false (res untouched) when every image vanished.
-bool modular_verdict(CertifyResult* res, const std::vector<const Matrix*>& letters, const Subspace& keep, int threads,
+bool modular_verdict(CertifyResult* res, const IndexedWord& letters, const Subspace& keep, int threads,
                      bool prove_zero) {
   Matrix post = leak_post(keep);
   ModularZeroOptions mo;
@@ -348,7 +349,7 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
   space.require_nonzero();
   if (keep.basis.rows() != space.dimension()) throw MathError("kept basis does not match the fusion space");
   std::vector<int> end;
-  std::vector<const Matrix*> letters = gens.letters(anyons, w, &end);
+  const IndexedWord letters = index_word(gens, anyons, w, &end);  // powers kept, letters found once
   if (end != anyons)
     throw InputError(fmt::format("the braid word permutes the anyons ({} becomes {}); leakage is defined only for "
                                  "braids that return every anyon type to its position",

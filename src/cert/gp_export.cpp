@@ -120,7 +120,10 @@ gen(an, tot, k) = {
   an += "]";
   g += fmt::format("AN = {};\nTOT = {};\n", an, in.total + 1);
   std::string word = "[";
-  for (size_t i = 0; i < in.word->size(); ++i) word += (i ? "," : "") + std::to_string(in.word->letters[i]);
+  in.word->for_each_letter([&](int l, std::uint32_t) {
+    if (word.size() > 1) word += ',';
+    word += std::to_string(l);
+  });
   word += "]";
   g += fmt::format("WORD = {};\n", word);
   g += fmt::format("V = {};\n", matrix_gp(in.keep->basis));

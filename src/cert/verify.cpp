@@ -192,7 +192,7 @@ std::vector<const LetterTable*> letter_tables(Action& act, const std::vector<int
                                               std::map<std::pair<std::vector<int>, int>, LetterTable>* store) {
   std::vector<const LetterTable*> out;
   std::vector<int> labels = anyons;
-  for (int l : w.letters) {
+  for (int l : w.expand()) {
     auto key = std::make_pair(labels, l);
     auto it = store->find(key);
     if (it == store->end()) {
@@ -1105,7 +1105,7 @@ VerifyOutcome check(const json& c, const std::string& cert_path, const std::stri
   std::vector<const Matrix*> seq;
   {
     std::vector<int> labels = x.anyons;
-    for (int l : x.word.letters) {
+    for (int l : x.word.expand()) {
       auto key = std::make_pair(labels, l);
       auto it = mats.find(key);
       if (it == mats.end()) it = mats.emplace(key, letter_matrix(act, labels, l)).first;

@@ -67,20 +67,7 @@ void add_space_options(CLI::App* c, SpaceOpts& o) {
 Word read_word(const std::string& word, const std::string& file) {
   if (!word.empty() && !file.empty()) throw InputError("give --word or --word-file, not both");
   if (file.empty()) return parse_word(word);
-  std::string text = read_file_bytes(file);
-  try {
-    // newlines count as blanks; '#' starts a comment up to the end of the line
-    std::string clean;
-    bool comment = false;
-    for (char ch : text) {
-      if (ch == '\n') comment = false;
-      if (ch == '#') comment = true;
-      clean += (comment || ch == '\n' || ch == '\r' || ch == '\t') ? ' ' : ch;
-    }
-    return parse_word(clean);
-  } catch (const InputError& e) {
-    throw InputError(fmt::format("{}: {}", file, e.what()));
-  }
+  return read_word_file(file);  // comments, blanks, limits; errors name FILE:LINE:COLUMN
 }
 
 }  // namespace

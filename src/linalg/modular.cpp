@@ -8,6 +8,7 @@
 
 #include "zetabraid/detail/parallel.hpp"
 #include "zetabraid/error.hpp"
+#include "zetabraid/linalg/word_product.hpp"
 
 namespace zb {
 
@@ -171,34 +172,37 @@ ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const M
     if (!letters[i] || letters[i]->cols() != r) throw MathError(fmt::format("letter {} does not compose", i + 1));
     r = letters[i]->rows();
   }
+  return word_product_mod(IndexedWord::from_letters(letters), start, q);
+}
+
+ModularImage word_product_mod(const IndexedWord& word, const Matrix& start, const ModularPrime& q) {
+  if (!word.empty() && word.cols() != start.rows()) throw MathError("letter 1 does not compose");
   nmod_t m = make_nmod(q.p);
   // Distinct letters reduced once, as lists of nonzero entries (row, col, value).
   struct Entry {
     size_t i, j;
     ulong v;
   };
-  std::unordered_map<const Matrix*, std::vector<Entry>> sparse;
+  std::vector<std::vector<Entry>> sparse;
+  for (const Matrix* l : word.letters()) {
+    ModularImage g = reduce_matrix(*l, q);
+    std::vector<Entry> e;
+    for (size_t i = 0; i < g.rows(); ++i)
+      for (size_t j = 0; j < g.cols(); ++j)
+        if (g(i, j)) e.push_back({i, j, g(i, j)});
+    sparse.push_back(std::move(e));
+  }
   ModularImage acc = reduce_matrix(start, q);
   const size_t k = start.cols();
-  std::vector<ulong> next;
-  for (const Matrix* l : letters) {
-    auto it = sparse.find(l);
-    if (it == sparse.end()) {
-      ModularImage g = reduce_matrix(*l, q);
-      std::vector<Entry> e;
-      for (size_t i = 0; i < g.rows(); ++i)
-        for (size_t j = 0; j < g.cols(); ++j)
-          if (g(i, j)) e.push_back({i, j, g(i, j)});
-      it = sparse.emplace(l, std::move(e)).first;
-    }
-    ModularImage out(q.p, l->rows(), k);
-    for (const Entry& e : it->second) {
+  word.for_each([&](std::uint32_t x) {
+    ModularImage out(q.p, word.letters()[x]->rows(), k);
+    for (const Entry& e : sparse[x]) {
       ulong* dst = &out(e.i, 0);
       const ulong* src = &acc(e.j, 0);
       for (size_t j = 0; j < k; ++j) dst[j] = nmod_add(dst[j], nmod_mul(e.v, src[j], m), m);
     }
     acc = std::move(out);
-  }
+  });
   return acc;
 }
 
@@ -253,10 +257,10 @@ std::vector<Embedding> embeddings_up_to_conjugation(const Field& f) {
 namespace {
 
 // Image of X = post * (word * start) - offset at q; false when p divides a denominator.
-bool image_of(ModularImage* out, const std::vector<const Matrix*>& letters, const Matrix& start, const Matrix* post,
+bool image_of(ModularImage* out, const IndexedWord& word, const Matrix& start, const Matrix* post,
               const Matrix* offset, const ModularPrime& q) {
   try {
-    ModularImage w = word_product_mod(letters, start, q);
+    ModularImage w = word_product_mod(word, start, q);
     if (post) w = reduce_matrix(*post, q) * w;
     if (offset) {
       ModularImage o = reduce_matrix(*offset, q);
@@ -453,6 +457,7 @@ ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, c
       throw MathError("offset matrix does not match the product's shape");
   }
   ModularZeroResult res;
+  const IndexedWord word = IndexedWord::from_letters(letters);  // distinct letters found once for all primes
   // Primes are taken in choose_primes order; a prime dividing a denominator is skipped (never at 62 bits for
   // the bundled models, but possible in principle).
   std::vector<ModularPrime> pool;
@@ -470,7 +475,7 @@ ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, c
       auto work = [&](size_t lo, size_t hi) {
         ModularImage im(2, 0, 0);
         for (size_t b = lo; b < hi; ++b) {
-          out[b].ok = image_of(&im, letters, start, post, offset, pool[next + b]);
+          out[b].ok = image_of(&im, word, start, post, offset, pool[next + b]);
           if (out[b].ok && first_nonzero(im, &out[b].r, &out[b].c)) {
             out[b].nonzero = true;
             out[b].v = im(out[b].r, out[b].c);
@@ -552,6 +557,11 @@ ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, c
   mag_clear(bound);
   fmpz_clear(t);
   return res;
+}
+
+ModularZeroResult modular_zero_test(const IndexedWord& word, const Matrix& start, const Matrix* post,
+                                    const Matrix* offset, const ModularZeroOptions& opt) {
+  return modular_zero_test(word.expand_pointers(), start, post, offset, opt);
 }
 
 }  // namespace zb

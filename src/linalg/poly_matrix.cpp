@@ -38,30 +38,10 @@ void cyclo_to_int_poly(fmpz_poly_t num, fmpz_t den, const Cyclo& c) {
 
 // ---------------- PolyContext ----------------
 
-PolyContext::PolyContext(FieldPtr f) : f_(std::move(f)), n_(f_->cyclotomic()->degree()) {
+PolyContext::PolyContext(FieldPtr f)
+    : f_(std::move(f)), n_(f_->cyclotomic()->degree()), reducer_(f_->cyclotomic()->modulus()) {
   fmpz_poly_init(phi_);
   fmpz_poly_set(phi_, f_->cyclotomic()->modulus());
-  {
-    // x^k mod Phi_N for k = n .. 3n - 3, by x^(k+1) = x * x^k reduced with the monic Phi_N.
-    fmpz_poly_t xk;
-    fmpz_poly_init(xk);
-    fmpz_poly_set_coeff_ui(xk, n_, 1);
-    fmpz_poly_rem(xk, xk, phi_);
-    bool fits = true;
-    for (long k = n_; k <= 3 * n_ - 3 && fits; ++k) {
-      std::vector<slong> row(static_cast<size_t>(n_), 0);
-      for (long i = 0; i < fmpz_poly_length(xk); ++i) {
-        const fmpz* c = fmpz_poly_get_coeff_ptr(xk, i);
-        if (!fmpz_fits_si(c) || fmpz_bits(c) > 40) fits = false;
-        else row[static_cast<size_t>(i)] = fmpz_get_si(c);
-      }
-      reduce_.push_back(std::move(row));
-      fmpz_poly_shift_left(xk, xk, 1);
-      fmpz_poly_rem(xk, xk, phi_);
-    }
-    if (!fits) reduce_.clear();
-    fmpz_poly_clear(xk);
-  }
   // Evaluation points 0, 1, -1, 2, -2, ... (2n - 2 of them) and infinity for products of length 2n - 1.
   const long np = 2 * n_ - 2;
   for (long q = 0; q < np; ++q) ev_.points.push_back(q == 0 ? 0 : (q % 2 ? (q + 1) / 2 : -(q / 2)));
@@ -89,31 +69,6 @@ PolyContext::PolyContext(FieldPtr f) : f_(std::move(f)), n_(f_->cyclotomic()->de
     fmpq_mat_clear(vi);
     fmpq_mat_clear(v);
   }
-}
-
-void PolyContext::reduce(fmpz_poly_t p) const {
-  const long len = fmpz_poly_length(p);
-  if (len <= n_) return;
-  if (n_ < 1 || reduce_.empty() || len > 3 * n_ - 2) {
-    fmpz_poly_rem(p, p, phi_);
-    return;
-  }
-  // Each c_k x^k (k >= n) is replaced by c_k (x^k mod Phi_N); the table rows have degree < n, so the order of
-  // the k does not matter. Signed small multipliers go through the _ui variants (FLINT 2.9's *_si variants can
-  // leave non-canonical values).
-  fmpz* c = p->coeffs;
-  for (long k = n_; k < len; ++k) {
-    if (fmpz_is_zero(c + k)) continue;
-    const std::vector<slong>& row = reduce_[static_cast<size_t>(k - n_)];
-    for (long i = 0; i < n_; ++i) {
-      slong t = row[static_cast<size_t>(i)];
-      if (t > 0) fmpz_addmul_ui(c + i, c + k, static_cast<ulong>(t));
-      else if (t < 0) fmpz_submul_ui(c + i, c + k, static_cast<ulong>(-t));
-    }
-    fmpz_zero(c + k);
-  }
-  _fmpz_poly_set_length(p, n_);
-  _fmpz_poly_normalise(p);
 }
 
 PolyContext::~PolyContext() {

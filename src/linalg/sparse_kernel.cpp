@@ -42,15 +42,13 @@ bool SparseLetter::make(SparseLetter* out, const PolyMatrix& g, const PolyContex
               break;
             }
             fmpz_poly_mul(h, h, rp.num);
-            fmpz_poly_rem(h, h, ctx.modulus());
+            ctx.reduce(h);
           }
           Term t{i, c, u, static_cast<int>(s ^ static_cast<RadicalMask>(u)), {}};
           std::vector<double> rabs(static_cast<size_t>(n), 0.0);
           for (long col = 0; col < n && ok; ++col) {
-            fmpz_poly_zero(xt);
-            fmpz_poly_set_coeff_ui(xt, col, 1);
-            fmpz_poly_mul(xt, xt, h);
-            if (fmpz_poly_length(xt) > n) fmpz_poly_rem(xt, xt, ctx.modulus());
+            fmpz_poly_shift_left(xt, h, col);  // x^col * h mod Phi_N
+            ctx.reduce(xt);
             for (long r = 0; r < fmpz_poly_length(xt); ++r) {
               const fmpz* v = fmpz_poly_get_coeff_ptr(xt, r);
               if (fmpz_is_zero(v)) continue;
@@ -162,10 +160,14 @@ SmallBlock apply(const SparseLetter& g, const SmallBlock& x) {
 
 namespace {
 #if defined(__x86_64__) && defined(__GNUC__)
-#define ZB_HAVE_AVX512_KERNEL 1
+#define ZB_HAVE_VECTOR_KERNELS 1
 bool have_avx512() {
   static const bool yes = __builtin_cpu_supports("avx512f") && __builtin_cpu_supports("avx512dq") &&
                           __builtin_cpu_supports("avx512vl");
+  return yes;
+}
+bool have_avx2() {
+  static const bool yes = __builtin_cpu_supports("avx2");
   return yes;
 }
 
@@ -187,6 +189,65 @@ __attribute__((target("avx512f,avx512dq,avx512vl"))) void program_avx512(std::in
         acc = _mm512_add_epi64(acc, _mm512_mullo_epi64(_mm512_maskz_loadu_epi64(mk, xj + q->src * k), _mm512_set1_epi64(q->v)));
       _mm512_mask_storeu_epi64(y + row.dst * k + j0, mk, acc);
     }
+  }
+}
+
+// Low 64 bits of a * v in every lane (AVX2 has no 64-bit multiply): v given by its 32-bit halves, broadcast;
+// a * v = a_lo v_lo + 2^32 (a_hi v_lo + a_lo v_hi) mod 2^64.
+__attribute__((target("avx2"))) inline __m256i mullo64_avx2(__m256i a, __m256i v_lo, __m256i v_hi) {
+  __m256i cross = _mm256_add_epi64(_mm256_mul_epu32(_mm256_srli_epi64(a, 32), v_lo), _mm256_mul_epu32(a, v_hi));
+  return _mm256_add_epi64(_mm256_mul_epu32(a, v_lo), _mm256_slli_epi64(cross, 32));
+}
+
+// The first `lanes` (0..4) of 4 lanes set. (Lambdas do not inherit the target attribute: plain functions here.)
+__attribute__((target("avx2"))) inline __m256i mask(long lanes) {
+  return _mm256_set_epi64x(lanes > 3 ? -1 : 0, lanes > 2 ? -1 : 0, lanes > 1 ? -1 : 0, lanes > 0 ? -1 : 0);
+}
+__attribute__((target("avx2"))) inline __m256i load(const std::int64_t* p, __m256i m) {
+  return _mm256_maskload_epi64(reinterpret_cast<const long long*>(p), m);
+}
+
+// One pass of the row program over columns j0 .. j0 + 4V - 1 with V 256-bit vectors (lanes outside k masked).
+template <int V>
+__attribute__((target("avx2"))) void program_avx2_pass(std::int64_t* y, const std::int64_t* xj, long k, long j0,
+                                                        const SparseLetter& g, __m256i m0, __m256i m1) {
+  const SparseLetter::ProgramSource* src = g.program_sources().data();
+  for (const auto& row : g.program_rows()) {
+    const SparseLetter::ProgramSource* q = src + row.first;
+    __m256i a0 = _mm256_setzero_si256(), a1 = _mm256_setzero_si256();
+    for (std::uint32_t e = 0; e < row.plus; ++e, ++q) {
+      const std::int64_t* p = xj + q->src * k;
+      a0 = _mm256_add_epi64(a0, load(p, m0));
+      if constexpr (V == 2) a1 = _mm256_add_epi64(a1, load(p + 4, m1));
+    }
+    for (std::uint32_t e = 0; e < row.minus; ++e, ++q) {
+      const std::int64_t* p = xj + q->src * k;
+      a0 = _mm256_sub_epi64(a0, load(p, m0));
+      if constexpr (V == 2) a1 = _mm256_sub_epi64(a1, load(p + 4, m1));
+    }
+    for (std::uint32_t e = 0; e < row.times; ++e, ++q) {
+      const std::int64_t* p = xj + q->src * k;
+      const std::uint64_t v = static_cast<std::uint64_t>(q->v);
+      const __m256i vl = _mm256_set1_epi64x(static_cast<long long>(v & 0xFFFFFFFFu));
+      const __m256i vh = _mm256_set1_epi64x(static_cast<long long>(v >> 32));
+      a0 = _mm256_add_epi64(a0, mullo64_avx2(load(p, m0), vl, vh));
+      if constexpr (V == 2) a1 = _mm256_add_epi64(a1, mullo64_avx2(load(p + 4, m1), vl, vh));
+    }
+    std::int64_t* d = y + row.dst * k + j0;
+    _mm256_maskstore_epi64(reinterpret_cast<long long*>(d), m0, a0);
+    if constexpr (V == 2) _mm256_maskstore_epi64(reinterpret_cast<long long*>(d + 4), m1, a1);
+  }
+}
+
+// Row program with 4 columns per 256-bit vector, two vectors (8 columns) per pass over the program.
+__attribute__((target("avx2"))) void program_avx2(std::int64_t* y, const std::int64_t* x, long k,
+                                                   const SparseLetter& g) {
+  for (long j0 = 0; j0 < k; j0 += 8) {
+    const long rest = k - j0;
+    if (rest > 4)
+      program_avx2_pass<2>(y, x + j0, k, j0, g, mask(4), mask(rest - 4));
+    else
+      program_avx2_pass<1>(y, x + j0, k, j0, g, mask(rest), mask(0));
   }
 }
 #endif
@@ -226,19 +287,39 @@ SmallBlock& prepare_output(SmallBlock* out, const SparseLetter& g, const SmallBl
 
 }  // namespace
 
-void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) { apply_into_program(out, g, x); }
-
-void apply_into_program(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool allow_vector) {
+void apply_into_portable(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
   SmallBlock& y = prepare_output(out, g, x, !g.covers_all());
-#ifdef ZB_HAVE_AVX512_KERNEL
-  if (allow_vector && have_avx512()) {
-    program_avx512(y.a.data(), x.a.data(), x.k, g);
-    return;
-  }
-#else
-  (void)allow_vector;
-#endif
   program_portable(y.a.data(), x.a.data(), x.k, g);
+}
+
+void apply_into_avx2(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
+  if (!letter_kernel_available(LetterKernel::kAvx2)) throw MathError("the AVX2 letter kernel needs a processor with AVX2");
+#ifdef ZB_HAVE_VECTOR_KERNELS
+  SmallBlock& y = prepare_output(out, g, x, !g.covers_all());
+  program_avx2(y.a.data(), x.a.data(), x.k, g);
+#else
+  (void)out, (void)g, (void)x;
+#endif
+}
+
+void apply_into_avx512(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
+  if (!letter_kernel_available(LetterKernel::kAvx512))
+    throw MathError("the AVX-512 letter kernel needs a processor with AVX-512 F, DQ and VL");
+#ifdef ZB_HAVE_VECTOR_KERNELS
+  SmallBlock& y = prepare_output(out, g, x, !g.covers_all());
+  program_avx512(y.a.data(), x.a.data(), x.k, g);
+#else
+  (void)out, (void)g, (void)x;
+#endif
+}
+
+void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, LetterKernel kernel) {
+  switch (letter_kernel_resolve(kernel)) {
+    case LetterKernel::kEntries: return apply_into_entries(out, g, x);
+    case LetterKernel::kAvx2: return apply_into_avx2(out, g, x);
+    case LetterKernel::kAvx512: return apply_into_avx512(out, g, x);
+    default: return apply_into_portable(out, g, x);
+  }
 }
 
 void apply_into_entries(SmallBlock* out, const SparseLetter& g, const SmallBlock& x) {
@@ -333,3 +414,46 @@ PolyMatrix BigBlock::to_poly(const PolyContext&, const fmpz* den) const {
 }
 
 }  // namespace zb::detail
+
+namespace zb {
+
+const char* letter_kernel_name(LetterKernel k) {
+  switch (k) {
+    case LetterKernel::kAuto: return "auto";
+    case LetterKernel::kEntries: return "entries";
+    case LetterKernel::kPortable: return "portable";
+    case LetterKernel::kAvx2: return "avx2";
+    case LetterKernel::kAvx512: return "avx512";
+  }
+  return "?";
+}
+
+bool letter_kernel_from_name(const std::string& name, LetterKernel* out) {
+  for (LetterKernel k : {LetterKernel::kAuto, LetterKernel::kEntries, LetterKernel::kPortable, LetterKernel::kAvx2,
+                         LetterKernel::kAvx512})
+    if (name == letter_kernel_name(k)) {
+      *out = k;
+      return true;
+    }
+  return false;
+}
+
+bool letter_kernel_available(LetterKernel k) {
+#ifdef ZB_HAVE_VECTOR_KERNELS
+  if (k == LetterKernel::kAvx2) return detail::have_avx2();
+  if (k == LetterKernel::kAvx512) return detail::have_avx512();
+#else
+  if (k == LetterKernel::kAvx2 || k == LetterKernel::kAvx512) return false;
+#endif
+  return true;
+}
+
+LetterKernel letter_kernel_resolve(LetterKernel k) {
+  if (k != LetterKernel::kAuto) return k;
+  static const LetterKernel best = letter_kernel_available(LetterKernel::kAvx512) ? LetterKernel::kAvx512
+                                   : letter_kernel_available(LetterKernel::kAvx2) ? LetterKernel::kAvx2
+                                                                                  : LetterKernel::kPortable;
+  return best;
+}
+
+}  // namespace zb

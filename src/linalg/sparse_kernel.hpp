@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "zetabraid/linalg/poly_matrix.hpp"
+#include "zetabraid/linalg/word_product.hpp"
 
 namespace zb::detail {
 
@@ -91,12 +92,15 @@ struct BigBlock {
 /// Whether G applied to x is safe in int64.
 bool fits_small(const SparseLetter& g, SmallBlock& x);
 SmallBlock apply(const SparseLetter& g, const SmallBlock& x);
-/// Same into *out (must not be x), reusing its buffer, with the row program (SparseLetter::program_rows;
-/// AVX-512 lanes when the processor has them). apply_into_entries (entry by entry, the reference) and
-/// apply_into_program with allow_vector = false (portable loop) give identical results (tests).
-void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
+/// y = g x into *out (must not be x), reusing its buffer: the named variants (LetterKernel, word_product.hpp) give
+/// identical results (tests compare each with apply_into_entries, the reference). apply_into_avx2 and
+/// apply_into_avx512 throw MathError when the processor (or the build) lacks the instructions.
 void apply_into_entries(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
-void apply_into_program(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, bool allow_vector = true);
+void apply_into_portable(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
+void apply_into_avx2(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
+void apply_into_avx512(SmallBlock* out, const SparseLetter& g, const SmallBlock& x);
+/// The dispatcher: runs letter_kernel_resolve(kernel).
+void apply_into(SmallBlock* out, const SparseLetter& g, const SmallBlock& x, LetterKernel kernel = LetterKernel::kAuto);
 BigBlock apply(const SparseLetter& g, const BigBlock& x);
 
 }  // namespace zb::detail

@@ -179,43 +179,6 @@ class ExactTree {
   std::map<std::pair<size_t, unsigned long>, std::unique_ptr<PolyMatrix>> powers_;
 };
 
-// Distinct letters converted once; the word as runs of one letter.
-struct Converted {
-  std::vector<PolyMatrix> leaves;
-  std::vector<Token> tokens;
-};
-
-Converted convert(const std::vector<const Matrix*>& letters, const PolyContext& ctx, bool runs) {
-  Converted c;
-  c.tokens.reserve(letters.size());
-  // Braid words have few distinct letters: a linear scan of them (hash map beyond 32) finds each letter's leaf.
-  std::vector<const Matrix*> seen;
-  std::unordered_map<const Matrix*, size_t> index;
-  for (const Matrix* m : letters) {
-    size_t leaf = seen.size();
-    if (seen.size() <= 32) {
-      for (size_t q = 0; q < seen.size(); ++q)
-        if (seen[q] == m) {
-          leaf = q;
-          break;
-        }
-    } else {
-      auto it = index.find(m);
-      if (it != index.end()) leaf = it->second;
-    }
-    if (leaf == seen.size()) {
-      seen.push_back(m);
-      index.emplace(m, leaf);
-      c.leaves.push_back(PolyMatrix::from_matrix(*m, ctx));
-    }
-    if (runs && !c.tokens.empty() && c.tokens.back().leaf == leaf)
-      ++c.tokens.back().exp;
-    else
-      c.tokens.push_back({leaf, 1});
-  }
-  return c;
-}
-
 }  // namespace
 
 Matrix word_product_naive(const std::vector<const Matrix*>& letters, const Matrix& start) {
@@ -226,6 +189,16 @@ Matrix word_product_naive(const std::vector<const Matrix*>& letters, const Matri
 }
 
 Matrix word_product(const std::vector<const Matrix*>& letters) { return word_product(letters, ProductOptions{}); }
+
+namespace {
+// Every distinct letter as a PolyMatrix (converted once).
+std::vector<PolyMatrix> convert(const IndexedWord& w, const PolyContext& ctx) {
+  std::vector<PolyMatrix> leaves;
+  leaves.reserve(w.letters().size());
+  for (const Matrix* m : w.letters()) leaves.push_back(PolyMatrix::from_matrix(*m, ctx));
+  return leaves;
+}
+}  // namespace
 
 namespace {
 
@@ -241,7 +214,7 @@ std::vector<detail::SparseLetter> kernels(const std::vector<PolyMatrix>& leaves,
 // appends the block products (application order) to out.
 void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, size_t lo, size_t hi,
                   const std::vector<detail::SparseLetter>& kern, const std::vector<PolyMatrix>& leaves,
-                  const PolyContext& ctx) {
+                  const PolyContext& ctx, LetterKernel variant) {
   const long n = ctx.degree(), masks = 1L << ctx.field()->radicand_count();
   bool empty = true;
   detail::SmallBlock acc, spare;
@@ -259,7 +232,7 @@ void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, 
         continue;
       }
     }
-    detail::apply_into(&spare, g, acc);
+    detail::apply_into(&spare, g, acc, variant);
     std::swap(acc, spare);
     empty = false;
   }
@@ -270,22 +243,34 @@ void small_blocks(std::vector<PolyMatrix>* out, const std::vector<size_t>& seq, 
 
 namespace {
 
-// The exact product as a PolyMatrix (letters non-empty, shapes checked).
-PolyMatrix exact_product(const std::vector<const Matrix*>& letters, const PolyContext& ctx, const ProductOptions& opt) {
-  Converted c = convert(letters, ctx, opt.share_repeats);
+// The exact product of one flat stretch of the word (runs of one letter, application order; `count` letters in
+// all) as a PolyMatrix. `kern` holds the int64 kernels of the letters once computed (empty: not yet, or unusable).
+PolyMatrix flat_product(std::vector<Token> tokens, size_t count, const std::vector<PolyMatrix>& leaves,
+                        std::vector<detail::SparseLetter>* kern, bool* kern_tried, const PolyContext& ctx,
+                        const ProductOptions& opt) {
+  if (!opt.share_repeats) {  // runs as single letters (measurements, tests)
+    std::vector<Token> single;
+    single.reserve(count);
+    for (const Token& t : tokens)
+      for (unsigned long e = 0; e < t.exp; ++e) single.push_back({t.leaf, 1});
+    tokens = std::move(single);
+  }
   // Words with long runs or a period go through the tree with powers and shared subtrees; others are first cut
   // into int64 blocks (sparse letters, exact coefficient bounds), then the blocks go through the tree.
-  bool repetitive = opt.share_repeats && (c.tokens.size() * 4 < letters.size() * 3 ||
-                                          (c.tokens.size() >= 4 && smallest_period(c.tokens) <= c.tokens.size() / 2));
-  std::vector<detail::SparseLetter> kern;
-  if (!repetitive && opt.small_kernel) kern = kernels(c.leaves, ctx);
-  if (kern.empty()) {
-    ExactTree tree(ctx, c.leaves, opt);
-    return tree.product(c.tokens);
+  bool repetitive = opt.share_repeats && (tokens.size() * 4 < count * 3 ||
+                                          (tokens.size() >= 4 && smallest_period(tokens) <= tokens.size() / 2));
+  if (!repetitive && opt.small_kernel && !*kern_tried) {
+    *kern = kernels(leaves, ctx);
+    *kern_tried = true;
   }
+  if (repetitive || kern->empty()) {
+    ExactTree tree(ctx, leaves, opt);
+    return tree.product(tokens);
+  }
+  const std::vector<detail::SparseLetter>& kn = *kern;
   std::vector<size_t> seq;
-  seq.reserve(letters.size());
-  for (const Token& t : c.tokens)
+  seq.reserve(count);
+  for (const Token& t : tokens)
     for (unsigned long e = 0; e < t.exp; ++e) seq.push_back(t.leaf);
   int parts = std::max(1, std::min<int>(opt.threads, static_cast<int>(seq.size() / 64) + 1));
   std::vector<std::vector<PolyMatrix>> blocks(static_cast<size_t>(parts));
@@ -297,7 +282,7 @@ PolyMatrix exact_product(const std::vector<const Matrix*>& letters, const PolyCo
       size_t hi = seq.size() * static_cast<size_t>(p + 1) / static_cast<size_t>(parts);
       auto job = [&, p, lo, hi] {
         try {
-          small_blocks(&blocks[static_cast<size_t>(p)], seq, lo, hi, kern, c.leaves, ctx);
+          small_blocks(&blocks[static_cast<size_t>(p)], seq, lo, hi, kn, leaves, ctx, opt.kernel);
         } catch (...) {
           err[static_cast<size_t>(p)] = std::current_exception();
         }
@@ -327,11 +312,71 @@ PolyMatrix exact_product(const std::vector<const Matrix*>& letters, const PolyCo
 
 }  // namespace
 
+namespace {
+
+// The exact product over the tree of an IndexedWord: flat stretches of letters by flat_product, each group once
+// (raised to its repeat by binary powering), the factors of a sequence by a balanced product tree.
+class TreeProduct {
+ public:
+  TreeProduct(const IndexedWord& w, const PolyContext& ctx, const ProductOptions& opt)
+      : w_(w), ctx_(ctx), opt_(opt), leaves_(convert(w, ctx)) {}
+
+  PolyMatrix sequence(std::uint32_t s) {
+    std::vector<PolyMatrix> parts;
+    std::vector<Token> tokens;
+    size_t count = 0;
+    auto flush = [&] {
+      if (tokens.empty()) return;
+      parts.push_back(flat_product(std::move(tokens), count, leaves_, &kern_, &kern_tried_, ctx_, opt_));
+      tokens.clear();
+      count = 0;
+    };
+    for (const IndexedWord::Item& it : w_.sequences()[s]) {
+      if (!it.group) {
+        tokens.push_back({it.index, static_cast<unsigned long>(it.repeat)});
+        count += static_cast<size_t>(it.repeat);
+        continue;
+      }
+      flush();
+      PolyMatrix g = sequence(it.index);
+      parts.push_back(it.repeat == 1 ? std::move(g) : PolyMatrix::pow(g, static_cast<unsigned long>(it.repeat), ctx_));
+    }
+    flush();
+    if (parts.empty()) throw MathError("empty sequence in an indexed word");
+    if (parts.size() == 1) return std::move(parts.front());
+    std::vector<Token> toks;
+    for (size_t i = 0; i < parts.size(); ++i) toks.push_back({i, 1});
+    ProductOptions o = opt_;
+    o.share_repeats = false;
+    ExactTree tree(ctx_, parts, o);
+    return tree.product(toks);
+  }
+
+ private:
+  const IndexedWord& w_;
+  const PolyContext& ctx_;
+  const ProductOptions& opt_;
+  std::vector<PolyMatrix> leaves_;
+  std::vector<detail::SparseLetter> kern_;
+  bool kern_tried_ = false;
+};
+
+PolyMatrix exact_product(const IndexedWord& w, const PolyContext& ctx, const ProductOptions& opt) {
+  return TreeProduct(w, ctx, opt).sequence(0);
+}
+
+}  // namespace
+
+Matrix word_product(const IndexedWord& w, const ProductOptions& opt) {
+  if (w.empty()) throw MathError("empty word: no matrix shape to return");
+  PolyContext ctx(w.letters().front()->field());
+  return exact_product(w, ctx, opt).to_matrix(ctx);
+}
+
 Matrix word_product(const std::vector<const Matrix*>& letters, const ProductOptions& opt) {
   if (letters.empty()) throw MathError("empty word: no matrix shape to return");
   check_shapes(letters, nullptr);
-  PolyContext ctx(letters.front()->field());
-  return exact_product(letters, ctx, opt).to_matrix(ctx);
+  return word_product(IndexedWord::from_letters(letters), opt);
 }
 
 Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start) {
@@ -340,16 +385,25 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
 
 Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Matrix& start, const ProductOptions& opt) {
   check_shapes(letters, &start);
-  if (letters.empty()) return start;
+  return word_product_columns(IndexedWord::from_letters(letters), start, opt);
+}
+
+Matrix word_product_columns(const IndexedWord& w, const Matrix& start, const ProductOptions& opt) {
+  if (w.empty()) return start;
+  if (start.field() != w.letters().front()->field()) throw MathError("start matrix from a different field");
+  if (start.rows() != w.cols())
+    throw MathError(fmt::format("start matrix {}x{} does not compose with the first letter ({} columns)", start.rows(),
+                                start.cols(), w.cols()));
   PolyContext ctx(start.field());
   size_t dim = start.rows(), k = start.cols();
-  for (const Matrix* m : letters) dim = std::max(dim, m->rows());
+  for (const Matrix* m : w.letters()) dim = std::max(dim, m->rows());
   PolyMatrix s = PolyMatrix::from_matrix(start, ctx);
   if (dim > opt.columns_ratio * k && dim > opt.columns_min_dimension) {
     // Column-wise: acc <- L acc, visiting only the nonzero entries of each letter.
-    Converted c = convert(letters, ctx, false);
+    const std::vector<PolyMatrix> leaves = convert(w, ctx);
+    const std::vector<std::uint32_t> seq = w.expand();
     std::vector<detail::SparseLetter> kern;
-    if (opt.small_kernel) kern = kernels(c.leaves, ctx);
+    if (opt.small_kernel) kern = kernels(leaves, ctx);
     if (!kern.empty()) {
       const long n = ctx.degree(), masks = 1L << ctx.field()->radicand_count();
       detail::SmallBlock small, spare;
@@ -372,16 +426,16 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
       // Phase 1: int64 columns while the bound allows. Phase 2: fmpz columns, letter by letter. Phase 3 (once
       // the columns' coefficients are long enough that dim int64 operations are cheaper than k big-number ones):
       // int64 block products of the letters (dim x dim, sparse letters) applied to the fmpz columns.
-      const size_t total = c.tokens.size();
+      const size_t total = seq.size();
       size_t x = 0;
       while (x < total && is_small) {
-        const detail::SparseLetter& g = kern[c.tokens[x].leaf];
+        const detail::SparseLetter& g = kern[seq[x]];
         if (!detail::fits_small(g, small)) {
           big = detail::BigBlock(small);
           is_small = false;
           break;
         }
-        detail::apply_into(&spare, g, small);
+        detail::apply_into(&spare, g, small, opt.kernel);
         std::swap(small, spare);
         ++x;
       }
@@ -395,25 +449,25 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
             blocks = true;
         }
         if (blocks) break;
-        big = detail::apply(kern[c.tokens[x].leaf], big);
+        big = detail::apply(kern[seq[x]], big);
         ++x;
       }
       if (x == total) return big.to_poly(ctx, s.denominator()).to_matrix(ctx);
       PolyMatrix acc = big.to_poly(ctx);
       while (x < total) {
-        const detail::SparseLetter& g0 = kern[c.tokens[x].leaf];
+        const detail::SparseLetter& g0 = kern[seq[x]];
         detail::SmallBlock blk = detail::SmallBlock::identity(g0.cols(), n, masks);
         size_t used = 0;
         while (x < total) {
-          const detail::SparseLetter& g = kern[c.tokens[x].leaf];
+          const detail::SparseLetter& g = kern[seq[x]];
           if (!detail::fits_small(g, blk)) break;
-          detail::apply_into(&spare, g, blk);
+          detail::apply_into(&spare, g, blk, opt.kernel);
           std::swap(blk, spare);
           ++x;
           ++used;
         }
         if (used == 0) {
-          acc = PolyMatrix::mul(c.leaves[c.tokens[x].leaf], acc, ctx);
+          acc = PolyMatrix::mul(leaves[seq[x]], acc, ctx);
           ++x;
         } else {
           acc = PolyMatrix::mul(blk.to_poly(ctx), acc, ctx);
@@ -423,12 +477,12 @@ Matrix word_product_columns(const std::vector<const Matrix*>& letters, const Mat
       return acc.to_matrix(ctx);
     }
     std::vector<PolyMatrix::Nonzeros> nz;
-    for (const auto& l : c.leaves) nz.push_back(l.nonzeros());
+    for (const auto& l : leaves) nz.push_back(l.nonzeros());
     PolyMatrix acc = std::move(s);
-    for (const Token& t : c.tokens) acc = PolyMatrix::mul_sparse(c.leaves[t.leaf], nz[t.leaf], acc, ctx);
+    for (std::uint32_t x : seq) acc = PolyMatrix::mul_sparse(leaves[x], nz[x], acc, ctx);
     return acc.to_matrix(ctx);
   }
-  PolyMatrix p = exact_product(letters, ctx, opt);
+  PolyMatrix p = exact_product(w, ctx, opt);
   if (start.is_identity()) return p.to_matrix(ctx);
   return PolyMatrix::mul(p, s, ctx).to_matrix(ctx);
 }

@@ -599,3 +599,19 @@ BallReport word_product_ball_adaptive(acb_mat_t out, const std::vector<const Mat
 }
 
 }  // namespace zb
+
+namespace zb {
+
+// The ball engines work letter by letter (or on a tree over the letter list): the IndexedWord is expanded to its
+// letters in application order (distinct letters are still enclosed once each, by pointer).
+void word_product_ball(acb_mat_t out, const IndexedWord& word, const Matrix& start, long prec, BallMethod method,
+                       int threads) {
+  word_product_ball(out, word.expand_pointers(), start, prec, method, threads);
+}
+
+BallReport word_product_ball_adaptive(acb_mat_t out, const IndexedWord& word, const Matrix& start,
+                                      const BallOptions& opt) {
+  return word_product_ball_adaptive(out, word.expand_pointers(), start, opt);
+}
+
+}  // namespace zb

@@ -31,14 +31,13 @@ std::string two_qubit(const std::string& word, const std::string& extra = "") {
 }
 
 Word random_word(std::mt19937_64& rng, const std::vector<int>& gens, size_t len) {
-  Word w;
+  std::vector<int> wl;
   std::uniform_int_distribution<size_t> pick(0, gens.size() - 1);
   std::uniform_int_distribution<int> sign(0, 1);
   for (size_t i = 0; i < len; ++i) {
-    w.letters.push_back(gens[pick(rng)] * (sign(rng) ? 1 : -1));
-    w.columns.push_back(0);
+    wl.push_back(gens[pick(rng)] * (sign(rng) ? 1 : -1));
   }
-  return w;
+  return Word::from_letters(wl);
 }
 
 }  // namespace

@@ -52,13 +52,12 @@ struct Fib {
   std::vector<const Matrix*> word(const std::string& w) { return gens.letters(anyons, parse_word(w)); }
   std::vector<const Matrix*> random(size_t len, unsigned seed, int max_gen = 5) {
     std::mt19937_64 rng(seed);
-    Word w;
+    std::vector<int> wl;
     for (size_t i = 0; i < len; ++i) {
       int k = 1 + static_cast<int>(rng() % static_cast<unsigned>(max_gen));
-      w.letters.push_back(rng() % 2 ? k : -k);
+      wl.push_back(rng() % 2 ? k : -k);
     }
-    w.columns.assign(len, 0);
-    return gens.letters(anyons, w);
+    return gens.letters(anyons, Word::from_letters(wl));
   }
 };
 
@@ -249,13 +248,12 @@ TEST_CASE("the norm bound is above |N(s x)| for single nonzero entries (Fibonacc
     BraidGenerators g(m, m.label_index(c.total));
     std::vector<int> an(static_cast<size_t>(c.n), m.label_index(c.label));
     std::mt19937_64 rng(77);
-    Word w;
+    std::vector<int> wl;
     for (int i = 0; i < 40; ++i) {
       int k = 1 + static_cast<int>(rng() % static_cast<unsigned>(c.n - 1));
-      w.letters.push_back(rng() % 2 ? k : -k);
+      wl.push_back(rng() % 2 ? k : -k);
     }
-    w.columns.assign(w.letters.size(), 0);
-    auto letters = g.letters(an, w);
+    auto letters = g.letters(an, Word::from_letters(wl));
     const size_t dim = g.space(an).dimension();
     CAPTURE(dim);
     Matrix start = Matrix::identity(m.field, dim);

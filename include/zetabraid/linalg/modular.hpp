@@ -25,6 +25,8 @@
 
 namespace zb {
 
+class IndexedWord;  // linalg/word_product.hpp
+
 struct ModularPrime {
   ulong p = 0;
   ulong zeta = 0;            ///< image of zeta_N: a primitive N-th root of unity mod p
@@ -71,6 +73,8 @@ ModularImage reduce_matrix(const Matrix& m, const ModularPrime& q);
 ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const Matrix& start, const ModularPrime& q);
 /// Image of L_n ... L_1 (as word_product).
 ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const ModularPrime& q);
+/// The same on an IndexedWord (letters reduced once each, then applied in application order).
+ModularImage word_product_mod(const IndexedWord& word, const Matrix& start, const ModularPrime& q);
 
 // ---- Proofs of zero from modular images (norm bound) ----
 //
@@ -132,5 +136,7 @@ void modular_norm_bound(mag_t bound, std::string* multiplier, const std::vector<
 /// application order, as word_product_columns. ResourceError when more than opt.max_primes would be needed.
 ModularZeroResult modular_zero_test(const std::vector<const Matrix*>& letters, const Matrix& start,
                                     const Matrix* post, const Matrix* offset, const ModularZeroOptions& opt = {});
+ModularZeroResult modular_zero_test(const IndexedWord& word, const Matrix& start, const Matrix* post,
+                                    const Matrix* offset, const ModularZeroOptions& opt = {});
 
 }  // namespace zb

@@ -17,6 +17,7 @@
 #include <flint/fmpz_mat.h>
 #include <flint/fmpz_poly_mat.h>
 
+#include "zetabraid/field/phi_reduce.hpp"
 #include "zetabraid/linalg/matrix.hpp"
 
 namespace zb {
@@ -48,19 +49,20 @@ class PolyContext {
     fmpz_t denominator;
   };
   const Evaluation& evaluation() const { return ev_; }
-  /// p <- p mod Phi_N in place (the exact remainder). Lengths up to 3n - 2 use a table of x^k mod Phi_N (small
-  /// integers, no allocation); longer polynomials fall back to fmpz_poly_rem.
-  void reduce(fmpz_poly_t p) const;
+  /// p <- p mod Phi_N in place (the exact remainder; field/phi_reduce.hpp: lengths up to 3n - 2 by a table of
+  /// x^k mod Phi_N, longer ones by fmpz_poly_rem).
+  void reduce(fmpz_poly_t p) const { reducer_.reduce(p); }
+  /// The reduction modulo Phi_N itself.
+  const PhiReducer& reducer() const { return reducer_; }
   /// Whether PolyMatrix::mul uses evaluation (small degrees; 1 <= n <= kMaxEvaluationDegree).
   static constexpr long kMaxEvaluationDegree = 12;
   bool has_evaluation() const { return n_ >= 1 && n_ <= kMaxEvaluationDegree; }
 
  private:
-  // reduce_[k - n] = coefficients of x^k mod Phi_N (length n), k = n .. 3n - 3; empty when a value exceeds slong.
-  std::vector<std::vector<slong>> reduce_;
   FieldPtr f_;
   long n_;
   fmpz_poly_t phi_;
+  PhiReducer reducer_;
   Evaluation ev_;
   mutable std::mutex mu_;
   mutable std::map<RadicalMask, std::unique_ptr<RadicandProduct>> rp_;
