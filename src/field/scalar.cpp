@@ -351,6 +351,12 @@ Scalar Scalar::conj() const {
   return r;
 }
 
+long Scalar::size_bits() const {
+  long b = 0;
+  for (const auto& [m, c] : t_) b += c.size().total;
+  return b;
+}
+
 bool Scalar::is_one() const { return t_.size() == 1 && t_.begin()->first == 0 && t_.begin()->second.is_one(); }
 bool Scalar::in_base() const { return t_.empty() || (t_.size() == 1 && t_.begin()->first == 0); }
 const Cyclo& Scalar::base_part() const {

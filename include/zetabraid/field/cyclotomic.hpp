@@ -91,6 +91,15 @@ class Cyclo {
   void trace(fmpq_t out) const;  ///< Tr_{K/Q}
   /// Power-basis coefficients.
   void get_poly(fmpq_poly_t out) const;
+  /// Storage size in the power basis: `total` = bits of every numerator coefficient plus the common denominator;
+  /// `height` = the largest (bits of a numerator coefficient + bits of the denominator); `nonzero` = number of
+  /// nonzero coefficients. Zero has all three 0.
+  struct Size {
+    long total = 0;
+    long height = 0;
+    long nonzero = 0;
+  };
+  Size size() const;
 
   /// Canonical text: the reduced polynomial in `zeta`, highest power first, e.g. "zeta^3 - 2*zeta + 1/2".
   std::string str() const;
