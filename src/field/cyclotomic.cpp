@@ -11,6 +11,12 @@
 
 namespace zb {
 
+std::string abbreviate(const std::string& s, size_t max_chars) {
+  if (s.size() <= max_chars) return s;
+  const size_t head = max_chars * 2 / 3, tail = max_chars / 3;
+  return s.substr(0, head) + fmt::format(" ... ({} characters) ... ", s.size()) + s.substr(s.size() - tail);
+}
+
 unsigned long euler_phi(unsigned long n) {
   fmpz_t a, r;
   fmpz_init_set_ui(a, n);

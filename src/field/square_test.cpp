@@ -219,6 +219,11 @@ SquareAnswer decide_square(const Cyclo& x, WitnessList& witnesses, size_t max_wi
     return ans;
   }
   long phi = x.field()->degree();
+  const long height = y.size().height;
+  if (height > kMaxNormMethodBits / (4 * phi * phi))
+    throw ResourceError(fmt::format("deciding whether {} is a square needs the norm method on a polynomial of about "
+                                    "{} bits, more than the limit of {} bits",
+                                    abbreviate(x.str(), 80), 4 * phi * phi * height, kMaxNormMethodBits));
   Cyclo root(x.field());
   for (long c = 0; c <= phi + 1; ++c)
     if (trager_root(y, c, &root)) {
@@ -233,7 +238,7 @@ SquareAnswer decide_square(const Cyclo& x, WitnessList& witnesses, size_t max_wi
     ans.witness = *w;
     return ans;
   }
-  throw ResourceError("could not decide whether " + x.str() + " is a square in Q(zeta_" +
+  throw ResourceError("could not decide whether " + abbreviate(x.str()) + " is a square in Q(zeta_" +
                       std::to_string(x.field()->conductor()) + ")");
 }
 

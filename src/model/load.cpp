@@ -150,7 +150,7 @@ class Loader {
     try {
       return parse_expression(*n.value<std::string>(), f, names_, limits_);
     } catch (const InputError& e) {
-      fail(&n, key, fmt::format("{} (in \"{}\")", e.what(), printable(*n.value<std::string>())));
+      fail(&n, key, fmt::format("{} (in \"{}\")", e.what(), printable(abbreviate(*n.value<std::string>()))));
     } catch (const ResourceError& e) {
       throw ResourceError(fmt::format("{}:{}: {}: {}", origin_, n.source().begin.line, key, e.what()));
     }

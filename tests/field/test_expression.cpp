@@ -8,6 +8,7 @@
 #include "support/helpers.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/field/expression.hpp"
+#include "zetabraid/field/square_test.hpp"
 
 using namespace zb;
 
@@ -52,6 +53,31 @@ TEST_CASE("bit budget: repeated squaring, inverses and long products stop at the
   Scalar x = parse_expression("2^3000 + zeta", f);
   CHECK((x * parse_expression("1/(2^3000 + zeta)", f)).is_one());
   CHECK(parse_expression("(2^100)^1000", f) == parse_expression("2^100000", f));
+}
+
+TEST_CASE("square roots of huge values: the norm method is bounded, messages quote values abbreviated") {
+  FieldPtr f = Field::make(5);
+  // A 2-million-bit square: the witnesses find no non-residue, and the norm method would factor a polynomial of
+  // about 64 * 2 * 10^6 bits; refused at once (before the bound it ran for minutes).
+  auto t0 = std::chrono::steady_clock::now();
+  try {
+    parse_expression("sqrt(((2^100000)^10 + zeta + zeta^4)^2)", f);
+    FAIL("accepted");
+  } catch (const ResourceError& e) {
+    CHECK(std::string(e.what()).find(fmt::format("limit of {} bits", kMaxNormMethodBits)) != std::string::npos);
+    CHECK(std::string(e.what()).size() < 600);
+  }
+  CHECK(std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count() < 0.5);
+  // Small squares still reduce.
+  CHECK(parse_expression("sqrt((2^1000 + zeta + zeta^4)^2) - (2^1000 + zeta + zeta^4)", f).is_zero());
+  CHECK(f->radicand_count() == 0);
+  try {
+    parse_expression("sqrt((2^100000)^3 * zeta)", f);
+    FAIL("accepted");
+  } catch (const ExpressionError& e) {
+    CHECK(std::string(e.what()).find("is not real") != std::string::npos);
+    CHECK(std::string(e.what()).size() < 600);
+  }
 }
 
 TEST_CASE("bit budget: ExpressionLimits::max_bits overrides the default, also for integer literals") {

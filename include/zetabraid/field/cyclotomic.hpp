@@ -118,6 +118,10 @@ class Cyclo {
 /// (a nonzero real is eventually separated from 0). ResourceError past 2^20 bits.
 int sign_of_nonzero_real(const std::function<void(acb_t, long)>& ball_at, const std::string& what);
 
+/// s itself when short; otherwise its start and end around "... (n characters) ...", for error messages that
+/// quote values from untrusted input.
+std::string abbreviate(const std::string& s, size_t max_chars = 200);
+
 /// Euler's phi.
 unsigned long euler_phi(unsigned long n);
 

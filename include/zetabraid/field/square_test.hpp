@@ -42,7 +42,12 @@ struct SquareAnswer {
   std::optional<Witness> witness;   ///< a non-residue witness when !is_square
 };
 
-/// Decides whether x is a square in its cyclotomic field, with a proof either way.
+/// Bound on the characteristic polynomial of the norm method, estimated as (2 phi)^2 * height(x) bits before it
+/// is computed: past it decide_square throws ResourceError instead of factoring a huge polynomial.
+inline constexpr long kMaxNormMethodBits = 1L << 22;
+
+/// Decides whether x is a square in its cyclotomic field, with a proof either way. ResourceError when neither a
+/// witness nor (within kMaxNormMethodBits) a root is found.
 SquareAnswer decide_square(const Cyclo& x, WitnessList& witnesses, size_t max_witnesses = 48);
 
 }  // namespace zb
