@@ -2,7 +2,6 @@
 #include "zetabraid/cert/certificate.hpp"
 
 #include <fmt/format.h>
-#include <openssl/evp.h>
 
 #include <fstream>
 #include <nlohmann/json.hpp>
@@ -20,19 +19,6 @@ std::string read_file_bytes(const std::string& path) {
   std::ostringstream s;
   s << f.rdbuf();
   return s.str();
-}
-
-std::string sha256_hex(const std::string& bytes) {
-  unsigned char md[EVP_MAX_MD_SIZE];
-  unsigned int len = 0;
-  EVP_MD_CTX* ctx = EVP_MD_CTX_new();
-  bool ok = ctx && EVP_DigestInit_ex(ctx, EVP_sha256(), nullptr) == 1 &&
-            EVP_DigestUpdate(ctx, bytes.data(), bytes.size()) == 1 && EVP_DigestFinal_ex(ctx, md, &len) == 1;
-  EVP_MD_CTX_free(ctx);
-  if (!ok) throw MathError("SHA-256 computation failed (OpenSSL)");
-  std::string hex;
-  for (unsigned int i = 0; i < len; ++i) hex += fmt::format("{:02x}", md[i]);
-  return hex;
 }
 
 std::string sha256_file(const std::string& path) { return sha256_hex(read_file_bytes(path)); }

@@ -4,11 +4,18 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <functional>
 
 #include "zetabraid/error.hpp"
 
 namespace zb {
+
+std::string abbreviate(const std::string& s, size_t max_chars) {
+  if (s.size() <= max_chars) return s;
+  const size_t head = max_chars * 2 / 3, tail = max_chars / 3;
+  return s.substr(0, head) + fmt::format(" ... ({} characters) ... ", s.size()) + s.substr(s.size() - tail);
+}
 
 unsigned long euler_phi(unsigned long n) {
   fmpz_t a, r;
@@ -208,6 +215,27 @@ bool Cyclo::is_one() const { return nf_elem_is_one(v_, k_->nf()); }
 bool Cyclo::is_rational() const { return nf_elem_is_rational(v_, k_->nf()); }
 
 void Cyclo::get_poly(fmpq_poly_t out) const { nf_elem_get_fmpq_poly(out, v_, k_->nf()); }
+
+Cyclo::Size Cyclo::size() const {
+  fmpq_poly_t p;
+  fmpq_poly_init(p);
+  get_poly(p);
+  Size s;
+  if (fmpq_poly_length(p) == 0) {
+    fmpq_poly_clear(p);
+    return s;
+  }
+  const long den = static_cast<long>(fmpz_bits(fmpq_poly_denref(p)));
+  for (long k = 0; k < fmpq_poly_length(p); ++k) {
+    const long b = static_cast<long>(fmpz_bits(fmpq_poly_numref(p) + k));
+    s.total += b;
+    s.height = std::max(s.height, b + den);
+    if (b > 0) ++s.nonzero;
+  }
+  s.total += den;
+  fmpq_poly_clear(p);
+  return s;
+}
 
 void Cyclo::get_fmpq(fmpq_t out) const {
   if (!is_rational()) throw MathError("element is not rational");

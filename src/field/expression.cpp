@@ -2,7 +2,9 @@
 
 #include <fmt/format.h>
 
+#include <bit>
 #include <cctype>
+#include <limits>
 #include <numeric>
 #include <optional>
 
@@ -122,23 +124,93 @@ class Parser {
     if (cur().kind != k) fail(fmt::format("expected {}, found {}", what, describe(cur())));
     next();
   }
+  // One nesting level: an opening parenthesis or a unary sign (checked against lim_.max_depth).
   struct Depth {
     Parser& p;
     explicit Depth(Parser& pp) : p(pp) {
       if (++p.depth_ > p.lim_.max_depth)
-        p.fail(fmt::format("expression nested deeper than {} levels", p.lim_.max_depth));
+        p.fail(fmt::format("expression nested deeper than {} levels (each parenthesis and unary sign is a level)",
+                           p.lim_.max_depth));
     }
     ~Depth() { --p.depth_; }
   };
 
+  // ---- the bit budget (lim_.max_bits) ----
+  static long sat_mul(long a, long b) {
+    long r;
+    return __builtin_mul_overflow(a, b, &r) ? std::numeric_limits<long>::max() : r;
+  }
+  [[noreturn]] void too_big(long bits, size_t col, const std::string& what) const {
+    throw ResourceError(fmt::format("column {}: {} would need {}{} bits, more than the limit of {} bits for an exact "
+                                    "value (max_bits; --max-bits on the command line)",
+                                    col, what, bits == std::numeric_limits<long>::max() ? "over " : "about ",
+                                    bits, lim_.max_bits));
+  }
+  const Scalar& checked(const Scalar& v, size_t col) const {
+    long b = v.size_bits();
+    if (b > lim_.max_bits) too_big(b, col, "this value");
+    return v;
+  }
+  // Size of w^-1, estimated before computing it: a non-rational element of K of height h has an inverse of about
+  // phi^2 h bits (phi coefficients of about phi h bits: adjugate over norm); each square root in w doubles the
+  // number of terms and the height (Scalar::inverse multiplies by a conjugate per radical).
+  long inverse_estimate(const Scalar& w) const {
+    RadicalMask all = 0;
+    long h = 0;
+    bool rational = true;
+    for (const auto& [m, c] : w.terms()) {
+      all |= m;
+      h = std::max(h, c.size().height);
+      if (m != 0 || !c.is_rational()) rational = false;
+    }
+    if (rational) return w.size_bits();
+    const int m = std::popcount(all);
+    for (int j = 0; j < 64; ++j)
+      if (all & (RadicalMask{1} << j)) h += f_->radicand(j).size().height;
+    if (m > 20) return std::numeric_limits<long>::max();
+    const long phi = f_->cyclotomic()->degree();
+    return sat_mul(sat_mul(phi, phi), sat_mul(h, 1L << (2 * m)));
+  }
+  Scalar checked_inverse(const Scalar& w, size_t col) const {
+    long est = inverse_estimate(w);
+    if (est > lim_.max_bits) too_big(est, col, "the inverse");
+    return checked(w.inverse(), col);
+  }
+  // base^e by squaring, every intermediate checked; refused beforehand when the estimated size is over the limit.
+  Scalar checked_pow(Scalar base, long e, size_t col) const {
+    if (e < 0) {
+      base = checked_inverse(base, col);
+      e = -e;
+    }
+    if (e >= 2 && !base.is_zero()) {
+      // bits beyond the leading one of each number, times e: about the size of base^e (a lower estimate when the
+      // coefficients grow by reduction; the stepwise checks below catch that case)
+      long log_size = 0;
+      for (const auto& [m, c] : base.terms()) {
+        Cyclo::Size sz = c.size();
+        log_size += sz.total - sz.nonzero - 1;
+      }
+      long est = sat_mul(log_size, e);
+      if (est > lim_.max_bits) too_big(est, col, fmt::format("the power ^{}", e));
+    }
+    Scalar r(f_, 1);
+    while (e) {
+      if (e & 1) r = checked(r * base, col);
+      e >>= 1;
+      if (e) base = checked(base * base, col);
+    }
+    return r;
+  }
+
   Scalar expr() {
-    Depth d(*this);
     Scalar v = term();
     while (cur().kind == Tok::kPlus || cur().kind == Tok::kMinus) {
       bool plus = cur().kind == Tok::kPlus;
+      size_t col = cur().col;
       next();
       Scalar w = term();
       if (plus) v += w; else v -= w;
+      checked(v, col);
     }
     return v;
   }
@@ -154,16 +226,20 @@ class Parser {
         v *= w;
       } else {
         if (w.is_zero()) throw ExpressionError("division by zero", col);
-        v /= w;
+        v *= checked_inverse(w, col);
       }
+      checked(v, col);
     }
     return v;
   }
 
   Scalar factor() {
-    Depth d(*this);
-    if (cur().kind == Tok::kMinus) { next(); return -factor(); }
-    if (cur().kind == Tok::kPlus) { next(); return factor(); }
+    if (cur().kind == Tok::kMinus || cur().kind == Tok::kPlus) {
+      Depth d(*this);
+      bool minus = cur().kind == Tok::kMinus;
+      next();
+      return minus ? -factor() : factor();
+    }
     return power();
   }
 
@@ -186,16 +262,20 @@ class Parser {
     size_t col = cur().col;
     Scalar base = atom();
     if (cur().kind == Tok::kCaret) {
+      size_t caret = cur().col;
       next();
       long e = exponent();
       if (e < 0 && base.is_zero()) throw ExpressionError("0 raised to a negative power", col);
-      base = base.pow(e);
+      base = checked_pow(std::move(base), e, caret);
       if (cur().kind == Tok::kCaret) fail("write a^(b*c) as a power with one integer exponent; '^' does not chain");
     }
     return base;
   }
 
-  Scalar integer_value(const std::string& digits) {
+  Scalar integer_value(const std::string& digits, size_t col) {
+    // log2(10) < 3.33: refuse before converting when the digits alone are over the limit
+    if (sat_mul(static_cast<long>(digits.size()), 333) / 100 > lim_.max_bits + 4)
+      too_big(sat_mul(static_cast<long>(digits.size()), 332) / 100, col, "this integer");
     fmpz_t z;
     fmpz_init(z);
     fmpz_set_str(z, digits.c_str(), 10);
@@ -218,8 +298,9 @@ class Parser {
     switch (t.kind) {
       case Tok::kInt:
         next();
-        return integer_value(t.text);
+        return checked(integer_value(t.text, t.col), t.col);
       case Tok::kLParen: {
+        Depth d(*this);
         next();
         Scalar v = expr();
         expect(Tok::kRParen, "')'");
@@ -235,6 +316,7 @@ class Parser {
           return Scalar::zeta_power(f_, static_cast<long>(n / 4));
         }
         if (t.text == "sqrt" || t.text == "conj") {
+          Depth d(*this);
           next();
           expect(Tok::kLParen, fmt::format("'(' after {}", t.text).c_str());
           size_t col = cur().col;
@@ -244,12 +326,13 @@ class Parser {
           if (!v.in_base())
             throw ExpressionError("sqrt of a number that already involves square roots is not supported", col);
           try {
-            return f_->sqrt(v.to_base());
+            return checked(f_->sqrt(v.to_base()), t.col);
           } catch (const InputError& e) {
             throw ExpressionError(e.what(), col);
           }
         }
         if (t.text == "exp") {
+          Depth d(*this);
           next();
           expect(Tok::kLParen, "'(' after exp");
           size_t col = cur().col;
@@ -262,7 +345,7 @@ class Parser {
           auto it = names_->find(t.text);
           if (it != names_->end()) {
             next();
-            return it->second;
+            return checked(it->second, t.col);
           }
         }
         fail(fmt::format("unknown name '{}'; expected zeta, i, sqrt, conj or exp", t.text));
@@ -274,7 +357,6 @@ class Parser {
 
   // ---- phases inside exp(...) ----
   Phase phase_sum() {
-    Depth d(*this);
     Phase v = phase_term();
     while (cur().kind == Tok::kPlus || cur().kind == Tok::kMinus) {
       bool plus = cur().kind == Tok::kPlus;
@@ -309,11 +391,15 @@ class Parser {
     return v;
   }
   Phase phase_factor() {
-    Depth d(*this);
     Phase v;
     const Token t = cur();
-    if (t.kind == Tok::kMinus) { next(); v = phase_factor(); fmpq_neg(v.r, v.r); return v; }
-    if (t.kind == Tok::kPlus) { next(); return phase_factor(); }
+    if (t.kind == Tok::kMinus || t.kind == Tok::kPlus) {
+      Depth d(*this);
+      next();
+      v = phase_factor();
+      if (t.kind == Tok::kMinus) fmpq_neg(v.r, v.r);
+      return v;
+    }
     if (t.kind == Tok::kInt) {
       next();
       fmpz_t z;
@@ -326,6 +412,7 @@ class Parser {
       fmpq_one(v.r);
       (t.text == "pi" ? v.pi : v.i) = 1;
     } else if (t.kind == Tok::kLParen) {
+      Depth d(*this);
       next();
       v = phase_sum();
       expect(Tok::kRParen, "')'");

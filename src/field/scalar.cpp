@@ -153,11 +153,11 @@ Scalar Field::sqrt(const Cyclo& x) {
   auto self = shared_from_this();
   if (x.is_zero()) return Scalar(self);
   if (!x.is_real())
-    throw InputError("sqrt(...) needs a real radicand; " + x.str() + " is not real under zeta -> exp(2*pi*i/N)");
+    throw InputError("sqrt(...) needs a real radicand; " + abbreviate(x.str()) + " is not real under zeta -> exp(2*pi*i/N)");
   if (x.real_sign() < 0) {
     // u = (zeta - zeta^-1)^2 = -4 sin^2(2 pi/N) < 0 and zeta - zeta^-1 = i * 2 sin(2 pi/N): the principal root.
     if (k_->conductor() < 3)
-      throw InputError("sqrt of the negative number " + x.str() + " is not real; Q(zeta_N) needs N >= 3 for it "
+      throw InputError("sqrt of the negative number " + abbreviate(x.str()) + " is not real; Q(zeta_N) needs N >= 3 for it "
                        "(e.g. conductor 4, where i lies)");
     Cyclo s0 = Cyclo::zeta_power(k_, 1) - Cyclo::zeta_power(k_, -1);
     return Scalar(self, s0) * sqrt(x / (s0 * s0));
@@ -211,7 +211,7 @@ Scalar Field::sqrt_uncached(const Cyclo& x) {
     if (sol.kind == F2Solution::kOutsideSpan) {
       // For every subset S, x d_S is a non-residue at some kept witness: no x d_S is a square. Adjoin x.
       if (frozen_)
-        throw InputError("sqrt(" + x.str() + ") is not in the declared field: add it to the radicands");
+        throw InputError("sqrt(" + abbreviate(x.str()) + ") is not in the declared field: add it to the radicands");
       if (radicand_count() >= kMaxRadicands)
         throw ResourceError(fmt::format("more than {} independent square roots requested", kMaxRadicands));
       radicands_.push_back(x);
@@ -227,7 +227,7 @@ Scalar Field::sqrt_uncached(const Cyclo& x) {
       return Scalar::monomial(self, r / dS, sol.subset);
     }
   }
-  throw ResourceError("could not decide whether sqrt(" + x.str() + ") is independent of the existing radicals");
+  throw ResourceError("could not decide whether sqrt(" + abbreviate(x.str()) + ") is independent of the existing radicals");
 }
 
 // ---------------- Scalar ----------------
@@ -349,6 +349,12 @@ Scalar Scalar::conj() const {
   Scalar r(f_);
   for (const auto& [m, c] : t_) r.t_.emplace(m, c.conj());
   return r;
+}
+
+long Scalar::size_bits() const {
+  long b = 0;
+  for (const auto& [m, c] : t_) b += c.size().total;
+  return b;
 }
 
 bool Scalar::is_one() const { return t_.size() == 1 && t_.begin()->first == 0 && t_.begin()->second.is_one(); }

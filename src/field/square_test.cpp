@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
 
 namespace zb {
@@ -67,30 +68,59 @@ void WitnessList::extend() {
 }
 
 int legendre_at(const Cyclo& x, const Witness& w) {
-  fmpq_poly_t poly;
-  fmpq_poly_init(poly);
+  // x = a/den with a in Z[zeta] and den a positive integer. When p does not divide den, reduction modulo the
+  // degree-one prime P = (p, zeta - r) is a ring homomorphism on Z_(p)[zeta] (p = 1 mod N, so p does not divide
+  // N nor the discriminant of Phi_N, and r is a root of Phi_N mod p): x |-> a(r) / den mod p. Its quadratic
+  // character equals that of the integral representative x * den^2 = a * den, so the symbol is (a(r) * den | p).
+  // Dropping den (as an earlier version did) is wrong whenever den is a non-residue mod p.
+  FmpqPolyT poly;
   x.get_poly(poly);
-  ulong p = w.p;
-  ulong den = fmpz_fdiv_ui(fmpq_poly_denref(poly), p);
-  if (den == 0) {
-    fmpq_poly_clear(poly);
-    return 0;
-  }
+  const ulong p = w.p;
+  const ulong den = fmpz_fdiv_ui(fmpq_poly_denref(poly.get()), p);
+  if (den == 0) return 0;  // no image at P: never a witness
   ulong v = 0;
-  const fmpz* c = fmpq_poly_numref(poly);
-  for (long k = fmpq_poly_length(poly) - 1; k >= 0; --k) {
+  const fmpz* c = fmpq_poly_numref(poly.get());
+  for (long k = fmpq_poly_length(poly.get()) - 1; k >= 0; --k) {
     v = n_mulmod2(v, w.root, p);
     v = n_addmod(v, fmpz_fdiv_ui(c + k, p), p);
   }
-  fmpq_poly_clear(poly);
+  v = n_mulmod2(v, den, p);
   if (v == 0) return 0;
   ulong e = n_powmod2(v, (p - 1) / 2, p);
   return e == 1 ? 1 : -1;
 }
 
+Cyclo integral_representative(const Cyclo& x, fmpz_t den) {
+  FmpqPolyT poly;
+  x.get_poly(poly);
+  fmpz_set(den, fmpq_poly_denref(poly.get()));
+  FmpqT d2;
+  fmpz_mul(fmpq_numref(d2.get()), den, den);
+  return x * Cyclo(x.field(), d2.get());
+}
+
 namespace {
 
-// Root of X^2 - x in K by the norm method with shift c; returns true and sets *root on success.
+// Owners of the two FLINT types used only here (see detail/raii.hpp for the common ones).
+struct FmpqMatT {
+  FmpqMatT(long r, long c) { fmpq_mat_init(m, r, c); }
+  ~FmpqMatT() { fmpq_mat_clear(m); }
+  FmpqMatT(const FmpqMatT&) = delete;
+  FmpqMatT& operator=(const FmpqMatT&) = delete;
+  fmpq_mat_struct* get() { return m; }
+  fmpq_mat_t m;
+};
+struct FmpzPolyFactorT {
+  FmpzPolyFactorT() { fmpz_poly_factor_init(f); }
+  ~FmpzPolyFactorT() { fmpz_poly_factor_clear(f); }
+  FmpzPolyFactorT(const FmpzPolyFactorT&) = delete;
+  FmpzPolyFactorT& operator=(const FmpzPolyFactorT&) = delete;
+  fmpz_poly_factor_struct* get() { return f; }
+  fmpz_poly_factor_t f;
+};
+
+// Root of X^2 - x in K by the norm method with shift c; returns true and sets *root on success. Any candidate is
+// verified by squaring, so nothing here needs a proof.
 bool trager_root(const Cyclo& x, long c, Cyclo* root) {
   const CyclotomicFieldPtr& k = x.field();
   long phi = k->degree();
@@ -99,72 +129,62 @@ bool trager_root(const Cyclo& x, long c, Cyclo* root) {
   Cyclo two_cz = cz + cz;
   Cyclo e = cz * cz - x;  // h(X) = X^2 - 2cz X + e
   // Multiplication by X on the basis zeta^i (i < phi), zeta^i X; column j = image of basis vector j.
-  fmpq_mat_t m;
-  fmpq_mat_init(m, 2 * phi, 2 * phi);
-  fmpq_poly_t pol;
-  fmpq_poly_init(pol);
-  fmpq_t q;
-  fmpq_init(q);
+  FmpqMatT m(2 * phi, 2 * phi);
+  FmpqPolyT pol;
+  FmpqT q;
   for (long i = 0; i < phi; ++i) {
-    fmpq_set_si(fmpq_mat_entry(m, phi + i, i), 1, 1);  // zeta^i -> zeta^i X
+    fmpq_set_si(fmpq_mat_entry(m.get(), phi + i, i), 1, 1);  // zeta^i -> zeta^i X
     Cyclo zi = Cyclo::zeta_power(k, i);
     Cyclo a = -(zi * e);        // constant part of zeta^i X^2
     Cyclo b = zi * two_cz;      // X part
     a.get_poly(pol);
     for (long r = 0; r < phi; ++r) {
       fmpq_poly_get_coeff_fmpq(q, pol, r);
-      fmpq_set(fmpq_mat_entry(m, r, phi + i), q);
+      fmpq_set(fmpq_mat_entry(m.get(), r, phi + i), q);
     }
     b.get_poly(pol);
     for (long r = 0; r < phi; ++r) {
       fmpq_poly_get_coeff_fmpq(q, pol, r);
-      fmpq_set(fmpq_mat_entry(m, phi + r, phi + i), q);
+      fmpq_set(fmpq_mat_entry(m.get(), phi + r, phi + i), q);
     }
   }
-  fmpq_poly_t cp;
-  fmpq_poly_init(cp);
-  fmpq_mat_charpoly(cp, m);
-  fmpz_poly_t zp;
-  fmpz_poly_init(zp);
+  FmpqPolyT cp;
+  fmpq_mat_charpoly(cp, m.get());
+  FmpzPolyT zp;
   fmpq_poly_get_numerator(zp, cp);
-  fmpz_poly_factor_t fac;
-  fmpz_poly_factor_init(fac);
-  fmpz_poly_factor(fac, zp);
-  bool found = false;
-  for (long f = 0; f < fac->num && !found; ++f) {
-    const fmpz_poly_struct* g = fac->p + f;
+  FmpzPolyFactorT fac;
+  fmpz_poly_factor(fac.get(), zp);
+  FmpzT cf;
+  FmpqT qi;
+  for (long f = 0; f < fac.get()->num; ++f) {
+    const fmpz_poly_struct* g = fac.get()->p + f;
     if (fmpz_poly_degree(g) > phi) continue;
     // g(X) mod h(X) = A + B X, by Horner: (A + B X) X = -B e + (A + 2cz B) X.
     Cyclo a(k), b(k);
-    fmpz_t cf;
-    fmpz_init(cf);
     for (long d = fmpz_poly_degree(g); d >= 0; --d) {
       Cyclo na = -(b * e);
       Cyclo nb = a + two_cz * b;
       fmpz_poly_get_coeff_fmpz(cf, g, d);
-      fmpq_t qi;
-      fmpq_init(qi);
       fmpq_set_fmpz_frac(qi, cf, fmpz_poly_lead(g));
-      a = na + Cyclo(k, qi);
+      a = na + Cyclo(k, qi.get());
       b = nb;
-      fmpq_clear(qi);
     }
-    fmpz_clear(cf);
     if (b.is_zero()) continue;
     Cyclo t = -(a / b);
     Cyclo s = t - cz;
     if (s * s == x) {
       *root = s;
-      found = true;
+      return true;
     }
   }
-  fmpz_poly_factor_clear(fac);
-  fmpz_poly_clear(zp);
-  fmpq_poly_clear(cp);
-  fmpq_clear(q);
-  fmpq_poly_clear(pol);
-  fmpq_mat_clear(m);
-  return found;
+  return false;
+}
+
+// First witness among [from, to) at which y (integral) is a non-residue.
+std::optional<Witness> find_witness(const Cyclo& y, WitnessList& witnesses, size_t from, size_t to) {
+  for (size_t i = from; i < to; ++i)
+    if (legendre_at(y, witnesses.at(i)) == -1) return witnesses.at(i);
+  return std::nullopt;
 }
 
 }  // namespace
@@ -177,44 +197,48 @@ SquareAnswer decide_square(const Cyclo& x, WitnessList& witnesses, size_t max_wi
     return ans;
   }
   if (x.is_rational()) {
-    fmpq_t q, r;
-    fmpq_init(q);
-    fmpq_init(r);
+    FmpqT q, r;
     x.get_fmpq(q);
-    bool sq = fmpq_sgn(q) > 0 && fmpz_is_square(fmpq_numref(q)) && fmpz_is_square(fmpq_denref(q));
+    bool sq = fmpq_sgn(q) > 0 && fmpz_is_square(fmpq_numref(q.get())) && fmpz_is_square(fmpq_denref(q.get()));
     if (sq) {
-      fmpz_sqrt(fmpq_numref(r), fmpq_numref(q));
-      fmpz_sqrt(fmpq_denref(r), fmpq_denref(q));
+      fmpz_sqrt(fmpq_numref(r.get()), fmpq_numref(q.get()));
+      fmpz_sqrt(fmpq_denref(r.get()), fmpq_denref(q.get()));
       ans.is_square = true;
-      ans.root = Cyclo(x.field(), r);
-    }
-    fmpq_clear(q);
-    fmpq_clear(r);
-    if (sq) return ans;
-    // fall through: a rational non-square can still be a square in K (e.g. 5 in Q(zeta_5))
-  }
-  for (size_t i = 0; i < max_witnesses; ++i)
-    if (legendre_at(x, witnesses.at(i)) == -1) {
-      ans.is_square = false;
-      ans.witness = witnesses.at(i);
+      ans.root = Cyclo(x.field(), r.get());
       return ans;
     }
+    // fall through: a rational non-square can still be a square in K (e.g. 5 in Q(zeta_5))
+  }
+  // Every decision below is taken on the integral representative y = x * den^2 (den > 0 the common denominator of
+  // x's coefficients): x is a square iff y is, a non-residue witness of y is one of x, and s^2 = y gives
+  // (s/den)^2 = x.
+  FmpzT den;
+  const Cyclo y = integral_representative(x, den);
+  if (auto w = find_witness(y, witnesses, 0, max_witnesses)) {
+    ans.witness = *w;
+    return ans;
+  }
   long phi = x.field()->degree();
+  const long height = y.size().height;
+  if (height > kMaxNormMethodBits / (4 * phi * phi))
+    throw ResourceError(fmt::format("deciding whether {} is a square needs the norm method on a polynomial of about "
+                                    "{} bits, more than the limit of {} bits",
+                                    abbreviate(x.str(), 80), 4 * phi * phi * height, kMaxNormMethodBits));
   Cyclo root(x.field());
   for (long c = 0; c <= phi + 1; ++c)
-    if (trager_root(x, c, &root)) {
+    if (trager_root(y, c, &root)) {
       ans.is_square = true;
-      ans.root = root;
+      FmpqT dq;
+      fmpz_set(fmpq_numref(dq.get()), den);
+      ans.root = root / Cyclo(x.field(), dq.get());
       return ans;
     }
   // No non-residue among the witnesses, yet no root: look further for a witness (always exists if not a square).
-  for (size_t i = max_witnesses; i < 64 * max_witnesses; ++i)
-    if (legendre_at(x, witnesses.at(i)) == -1) {
-      ans.is_square = false;
-      ans.witness = witnesses.at(i);
-      return ans;
-    }
-  throw ResourceError("could not decide whether " + x.str() + " is a square in Q(zeta_" +
+  if (auto w = find_witness(y, witnesses, max_witnesses, 64 * max_witnesses)) {
+    ans.witness = *w;
+    return ans;
+  }
+  throw ResourceError("could not decide whether " + abbreviate(x.str()) + " is a square in Q(zeta_" +
                       std::to_string(x.field()->conductor()) + ")");
 }
 

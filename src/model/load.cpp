@@ -4,12 +4,13 @@
 #include <fmt/format.h>
 
 #include <algorithm>
-#include <fstream>
 #include <sstream>
 #include <toml++/toml.h>
 
 #include "zetabraid/error.hpp"
 #include "zetabraid/field/expression.hpp"
+#include "zetabraid/io/input_file.hpp"
+#include "zetabraid/io/sha256.hpp"
 
 namespace zb {
 
@@ -17,9 +18,58 @@ namespace {
 
 constexpr int kMaxLabels = 1000;
 
+// The text of line `line` (1-based) of text.
+std::string line_of(const std::string& text, size_t line) {
+  size_t start = 0;
+  for (size_t l = 1; l < line && start != std::string::npos; ++l) {
+    start = text.find('\n', start);
+    if (start != std::string::npos) ++start;
+  }
+  if (start == std::string::npos || start > text.size()) return {};
+  size_t end = text.find('\n', start);
+  return text.substr(start, end == std::string::npos ? std::string::npos : end - start);
+}
+
+std::string trim(const std::string& s) {
+  size_t a = s.find_first_not_of(" \t\r"), b = s.find_last_not_of(" \t\r");
+  return a == std::string::npos ? std::string() : s.substr(a, b - a + 1);
+}
+
+// "key: what" for a TOML redefinition at `line`, read from the text itself (toml++ 3.3 quotes a wrong key for
+// quoted keys): the key before '=' outside quotes, prefixed by the last [table] header above it.
+std::string duplicate_key_message(const std::string& text, size_t line) {
+  std::string l = line_of(text, line);
+  std::string t = trim(l);
+  if (!t.empty() && t[0] == '[')
+    return fmt::format("{}: this table is given twice (TOML allows each table once)", printable(t));
+  char quote = 0;
+  size_t eq = std::string::npos;
+  for (size_t i = 0; i < l.size() && eq == std::string::npos; ++i) {
+    if (quote) {
+      if (l[i] == '\\' && quote == '"') ++i;
+      else if (l[i] == quote) quote = 0;
+    } else if (l[i] == '"' || l[i] == '\'') {
+      quote = l[i];
+    } else if (l[i] == '=') {
+      eq = i;
+    }
+  }
+  std::string key = trim(l.substr(0, eq));
+  std::string table;
+  for (size_t k = line; k-- > 1;) {
+    std::string h = trim(line_of(text, k));
+    if (h.size() > 2 && h[0] == '[' && h.find(']') != std::string::npos) {
+      table = trim(h.substr(h[1] == '[' ? 2 : 1, h.find(']') - (h[1] == '[' ? 2 : 1)));
+      break;
+    }
+  }
+  return fmt::format("{}{}: this key is given twice (TOML allows each key once per table)",
+                     table.empty() ? "" : printable(table) + ".", printable(key));
+}
+
 class Loader {
  public:
-  explicit Loader(std::string origin) : origin_(std::move(origin)) {}
+  Loader(const std::string& origin, const ExpressionLimits& limits) : origin_(printable(origin)), limits_(limits) {}
 
   [[noreturn]] void fail(const toml::node* at, const std::string& key, const std::string& what) const {
     std::string where = origin_;
@@ -35,8 +85,11 @@ class Loader {
     try {
       root = toml::parse(text, origin_);
     } catch (const toml::parse_error& e) {
-      throw InputError(fmt::format("{}:{}:{}: not valid TOML: {}", origin_, e.source().begin.line,
-                                   e.source().begin.column, e.description()));
+      const auto line = e.source().begin.line;
+      if (e.description().find("cannot redefine existing") != std::string_view::npos)
+        throw InputError(fmt::format("{}:{}: {}", origin_, line, duplicate_key_message(text, line)));
+      throw InputError(fmt::format("{}:{}:{}: not valid TOML: {}", origin_, line, e.source().begin.column,
+                                   printable(std::string(e.description()))));
     }
     static const std::set<std::string> known = {"format", "name", "source", "labels", "unitary", "field",
                                                 "constants", "fusion", "F", "R", "f_unlisted", "r_unlisted"};
@@ -77,6 +130,7 @@ class Loader {
 
  private:
   std::string origin_;
+  ExpressionLimits limits_;
   std::map<std::string, Scalar> names_;
 
   std::string get_string(const toml::table& t, const char* key, bool required) {
@@ -94,9 +148,11 @@ class Loader {
     if (n.is_integer()) return Scalar(f, static_cast<long>(*n.value<int64_t>()));
     if (!n.is_string()) fail(&n, key, "expected an exact value as a string, e.g. \"1/2 + sqrt(5)/2\"");
     try {
-      return parse_expression(*n.value<std::string>(), f, names_);
+      return parse_expression(*n.value<std::string>(), f, names_, limits_);
     } catch (const InputError& e) {
-      fail(&n, key, fmt::format("{} (in \"{}\")", e.what(), *n.value<std::string>()));
+      fail(&n, key, fmt::format("{} (in \"{}\")", e.what(), printable(abbreviate(*n.value<std::string>()))));
+    } catch (const ResourceError& e) {
+      throw ResourceError(fmt::format("{}:{}: {}: {}", origin_, n.source().begin.line, key, e.what()));
     }
   }
 
@@ -349,15 +405,16 @@ class Loader {
 
 }  // namespace
 
-Model parse_model(const std::string& text, const std::string& origin) { return Loader(origin).run(text); }
+Model parse_model(const std::string& text, const std::string& origin, const ExpressionLimits& limits) {
+  Model m = Loader(origin, limits).run(text);
+  m.source_sha256 = sha256_hex(text);
+  return m;
+}
 
-Model load_model(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(fmt::format("{}: cannot open the model file", path));
-  std::ostringstream ss;
-  ss << in.rdbuf();
-  if (ss.str().size() > (256u << 20)) throw ResourceError(path + ": model file larger than 256 MB");
-  return parse_model(ss.str(), path);
+Model load_model(const std::string& path, const ExpressionLimits& limits) {
+  // Read once; the hash and the parse see the same bytes.
+  const std::string text = read_input_file(path, kMaxModelFileBytes, "model file");
+  return parse_model(text, path, limits);
 }
 
 }  // namespace zb

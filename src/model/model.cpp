@@ -13,7 +13,7 @@ std::uint64_t key6(int a, int b, int c, int d, int e, int f) {
 }  // namespace
 
 Model::Model(const Model& o)
-    : name(o.name), source(o.source), field(o.field), labels(o.labels), claims_unitary(o.claims_unitary),
+    : name(o.name), source(o.source), source_sha256(o.source_sha256), field(o.field), labels(o.labels), claims_unitary(o.claims_unitary),
       has_r(o.has_r), f_given(o.f_given), r_given(o.r_given), f_line(o.f_line), r_line(o.r_line),
       fusion_(o.fusion_), f_(o.f_), r_(o.r_) {
   for (auto& [k, v] : f_) f_index_[key6(k[0], k[1], k[2], k[3], k[4], k[5])] = &v;

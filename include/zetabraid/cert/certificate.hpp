@@ -4,11 +4,11 @@
 #include <string>
 
 #include "zetabraid/cert/certify.hpp"
+#include "zetabraid/io/sha256.hpp"
 
 namespace zb {
 
-/// Lower-case hex SHA-256 of bytes / of a file's bytes (OpenSSL EVP). InputError when unreadable.
-std::string sha256_hex(const std::string& bytes);
+/// Lower-case hex SHA-256 of a file's bytes (sha256_hex, io/sha256.hpp). InputError when unreadable.
 std::string sha256_file(const std::string& path);
 /// Whole file as bytes; InputError naming the file when unreadable.
 std::string read_file_bytes(const std::string& path);

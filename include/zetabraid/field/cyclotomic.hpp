@@ -91,6 +91,15 @@ class Cyclo {
   void trace(fmpq_t out) const;  ///< Tr_{K/Q}
   /// Power-basis coefficients.
   void get_poly(fmpq_poly_t out) const;
+  /// Storage size in the power basis: `total` = bits of every numerator coefficient plus the common denominator;
+  /// `height` = the largest (bits of a numerator coefficient + bits of the denominator); `nonzero` = number of
+  /// nonzero coefficients. Zero has all three 0.
+  struct Size {
+    long total = 0;
+    long height = 0;
+    long nonzero = 0;
+  };
+  Size size() const;
 
   /// Canonical text: the reduced polynomial in `zeta`, highest power first, e.g. "zeta^3 - 2*zeta + 1/2".
   std::string str() const;
@@ -108,6 +117,10 @@ class Cyclo {
 /// Sign of a number known to be real and nonzero, from enclosures ball_at(out, prec) at doubling precision
 /// (a nonzero real is eventually separated from 0). ResourceError past 2^20 bits.
 int sign_of_nonzero_real(const std::function<void(acb_t, long)>& ball_at, const std::string& what);
+
+/// s itself when short; otherwise its start and end around "... (n characters) ...", for error messages that
+/// quote values from untrusted input.
+std::string abbreviate(const std::string& s, size_t max_chars = 200);
 
 /// Euler's phi.
 unsigned long euler_phi(unsigned long n);

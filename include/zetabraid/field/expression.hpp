@@ -31,13 +31,25 @@ class ExpressionError : public InputError {
   std::string message_;
 };
 
+/// Deepest nesting the parser accepts: each '(' (also of sqrt( conj( exp( and of an exponent) and each unary sign
+/// counts one level. Used by the check and its message (README, "Limits").
+inline constexpr int kMaxExpressionDepth = 256;
+
+/// Default bound on the size of every value the parser produces, intermediate results included: the sum of the
+/// bits of all stored numerator coefficients and denominators (Scalar::size_bits), 2^22 bits = 512 KiB.
+inline constexpr long kDefaultMaxValueBits = 1L << 22;
+
 struct ExpressionLimits {
-  size_t max_length = 1 << 20;  ///< characters
-  int max_depth = 256;          ///< nesting of parentheses and unary operators
-  long max_exponent = 100000;   ///< |e| in x^e
+  size_t max_length = 1 << 20;             ///< characters
+  int max_depth = kMaxExpressionDepth;     ///< nesting of parentheses and unary signs
+  long max_exponent = 100000;              ///< |e| in x^e
+  /// Bound on Scalar::size_bits of every value (and every intermediate value) of an expression; powers and
+  /// inverses are estimated before they are computed. Exceeding it throws ResourceError naming the limit.
+  long max_bits = kDefaultMaxValueBits;
 };
 
-/// Parses and evaluates text in field f. Throws ExpressionError (an InputError) on malformed input.
+/// Parses and evaluates text in field f. Throws ExpressionError (an InputError) on malformed input and
+/// ResourceError ("column C: ... more than the limit of B bits ...") when a value would exceed limits.max_bits.
 Scalar parse_expression(const std::string& text, const FieldPtr& f, const ExpressionLimits& limits = {});
 
 /// As above, with named constants: an identifier that is not built in (zeta, i, sqrt, conj, exp, pi) is looked

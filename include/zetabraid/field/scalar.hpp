@@ -113,6 +113,8 @@ class Scalar {
   Scalar conj() const;                ///< complex conjugation (fixes every sqrt(d_j))
   Scalar abs2() const { return *this * conj(); }
   bool is_zero() const { return t_.empty(); }
+  /// Storage size in bits: the sum of Cyclo::size().total over the stored coefficients c_S.
+  long size_bits() const;
   bool is_one() const;
   bool in_base() const;               ///< lies in K (no radicals)
   const Cyclo& base_part() const;     ///< c_{empty set}; zero if absent

@@ -27,8 +27,14 @@ class WitnessList {
   std::vector<Witness> list_;
 };
 
-/// Legendre symbol of x(r) modulo p: 1, -1, or 0 when x(r) = 0 mod p or p divides x's denominator.
+/// Quadratic character of x at the degree-one prime P = (p, zeta - r): 1 or -1 for a nonzero residue or
+/// non-residue, 0 when x = 0 mod P or p divides the denominator of x (then x has no image and no verdict).
+/// Computed on the integral representative: with x = a/den (a in Z[zeta], den in Z), the symbol of a(r) * den.
 int legendre_at(const Cyclo& x, const Witness& w);
+
+/// The integral representative x * den^2 of x modulo squares, den > 0 the least common denominator of x's
+/// power-basis coefficients (so the result lies in Z[zeta]); den is set. x is a square iff the result is.
+Cyclo integral_representative(const Cyclo& x, fmpz_t den);
 
 struct SquareAnswer {
   bool is_square = false;
@@ -36,7 +42,12 @@ struct SquareAnswer {
   std::optional<Witness> witness;   ///< a non-residue witness when !is_square
 };
 
-/// Decides whether x is a square in its cyclotomic field, with a proof either way.
+/// Bound on the characteristic polynomial of the norm method, estimated as (2 phi)^2 * height(x) bits before it
+/// is computed: past it decide_square throws ResourceError instead of factoring a huge polynomial.
+inline constexpr long kMaxNormMethodBits = 1L << 22;
+
+/// Decides whether x is a square in its cyclotomic field, with a proof either way. ResourceError when neither a
+/// witness nor (within kMaxNormMethodBits) a root is found.
 SquareAnswer decide_square(const Cyclo& x, WitnessList& witnesses, size_t max_witnesses = 48);
 
 }  // namespace zb

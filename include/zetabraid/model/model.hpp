@@ -31,6 +31,7 @@ struct Model {
 
   std::string name;
   std::string source;        ///< provenance text from the file (paper/formula or generating command)
+  std::string source_sha256; ///< lower-case hex SHA-256 of the exact bytes parsed (empty when not from text)
   FieldPtr field;            ///< K(sqrt(d_1), ...) containing every value
   std::vector<std::string> labels;
   bool claims_unitary = false;
