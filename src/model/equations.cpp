@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include <atomic>
 #include <chrono>
 #include <memory>
 #include <mutex>
