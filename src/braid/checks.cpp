@@ -4,9 +4,9 @@
 
 #include <deque>
 
-#include "zetabraid/braid/invariant.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/linalg/word_product.hpp"
+#include "zetabraid/model/ribbon.hpp"
 
 namespace zb {
 
@@ -154,7 +154,10 @@ BraidReport check_braid_representation(BraidGenerators& gens, const std::vector<
     std::vector<int> delta2;
     for (int r = 0; r < n; ++r)
       for (int i = 1; i < n; ++i) delta2.push_back(i);
-    Scalar expect = twist(model, sp.total()) / twist(model, a).pow(n);
+    // The full twist (s1...s_{n-1})^n acts on V(a^n; c) as theta_c / theta_a^n (twists from the model's ribbon data).
+    const RibbonData rd = ribbon_data(model);
+    if (!rd.braided) throw MathError("the model has no R-symbols: no full twist");
+    Scalar expect = rd.twists[static_cast<size_t>(sp.total())] / rd.twists[static_cast<size_t>(a)].pow(n);
     rep.twist_checked = true;
     rep.twist_expected = expect;
     Matrix ft = n > 1 ? product(gens, anyons, delta2) : Matrix::identity(f, sp.dimension());

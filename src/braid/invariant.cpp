@@ -10,33 +10,6 @@
 
 namespace zb {
 
-Scalar quantum_dimension(const Model& model, int a) {
-  if (a == 0) return Scalar(model.field, 1);
-  int ad = model.dual(a);
-  if (ad < 0) throw MathError(fmt::format("label {} has no dual", model.labels[a]));
-  const Scalar* f = model.f_symbol(a, ad, a, a, 0, 0);
-  if (!f || f->is_zero())
-    throw MathError(fmt::format("[F^{{{} {} {}}}_{}]_{{0 0}} is missing or zero", model.labels[a], model.labels[ad],
-                                model.labels[a], model.labels[a]));
-  Scalar inv = f->inverse();
-  if (!model.claims_unitary) return inv;
-  // |1/f| = sqrt(inv * conj(inv)); for a real inv this is sign(inv) * inv
-  if (inv.is_real()) return inv.real_sign() < 0 ? -inv : inv;
-  Scalar n2 = inv.abs2();
-  if (!n2.in_base()) throw MathError("quantum dimension: |F|^2 is not in the base field");
-  return model.field->sqrt(n2.to_base());
-}
-
-Scalar twist(const Model& model, int a) {
-  Scalar s(model.field);
-  for (int c : model.channels(a, a)) {
-    const Scalar* r = model.r_symbol(a, a, c);
-    if (!r) throw MathError(fmt::format("missing R^{{{} {}}}_{}", model.labels[a], model.labels[a], model.labels[c]));
-    s += quantum_dimension(model, c) * *r;
-  }
-  return s / quantum_dimension(model, a);
-}
-
 LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands, const Word& w) {
   const int n = static_cast<int>(strands.size());
   w.check_range(n);
@@ -71,6 +44,12 @@ LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands
     if (comp[static_cast<size_t>(x)] == comp[static_cast<size_t>(y)])
       out.self_writhe[static_cast<size_t>(comp[static_cast<size_t>(x)])] += letters[k] > 0 ? 1 : -1;
   }
+  const RibbonData rd = ribbon_data(model);  // d and theta with the model's FS indicators
+  auto dim = [&](int a) { return rd.dims[static_cast<size_t>(a)]; };
+  auto twist_of = [&](int a) {
+    if (!rd.braided) throw MathError("the model has no R-symbols: the link invariant needs braiding");
+    return rd.twists[static_cast<size_t>(a)];
+  };
   for (int c = 0; c < model.label_count(); ++c) {
     BraidGenerators gens(model, c);
     const FusionSpace& sp = gens.space(strands);
@@ -81,7 +60,7 @@ LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands
     } else {
       tr = word_product(gens.letters(strands, w)).trace();
     }
-    out.quantum_trace += quantum_dimension(model, c) * tr;
+    out.quantum_trace += dim(c) * tr;
   }
   Scalar corr(model.field, 1);
   for (int s = 0; s < n; ++s) {
@@ -90,14 +69,13 @@ LinkInvariant link_invariant(const Model& model, const std::vector<int>& strands
     bool first = true;
     for (int t = 0; t < s; ++t) first = first && comp[static_cast<size_t>(t)] != k;
     if (!first) continue;
-    corr *= twist(model, strands[static_cast<size_t>(s)]).pow(-out.self_writhe[static_cast<size_t>(k)]);
+    corr *= twist_of(strands[static_cast<size_t>(s)]).pow(-out.self_writhe[static_cast<size_t>(k)]);
   }
-  out.invariant = corr * out.quantum_trace / quantum_dimension(model, strands[0]);
+  out.invariant = corr * out.quantum_trace / dim(strands[0]);
   bool uniform = true;
   for (int a : strands) uniform = uniform && a == strands[0];
-  out.writhe_normalised = uniform ? twist(model, strands[0]).pow(-w.writhe()) * out.quantum_trace /
-                                        quantum_dimension(model, strands[0])
-                                  : out.invariant;
+  out.writhe_normalised =
+      uniform ? twist_of(strands[0]).pow(-w.writhe()) * out.quantum_trace / dim(strands[0]) : out.invariant;
   return out;
 }
 

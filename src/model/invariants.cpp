@@ -6,33 +6,18 @@
 #include <nlohmann/json.hpp>
 #include <numeric>
 
+#include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
+#include "zetabraid/model/ribbon.hpp"
 
 namespace zb {
 
 namespace {
 
 std::string ball_of(const Scalar& s, long digits) {
-  acb_t b;
-  acb_init(b);
+  AcbT b;
   s.ball(b, static_cast<long>(static_cast<double>(digits) * 3.33) + 16);
-  std::string out = ball_str(b, digits);
-  acb_clear(b);
-  return out;
-}
-
-// d_a d_b = sum_c N_ab^c d_c for all a, b, and d_a = d_{a*}.
-bool is_fusion_character(const Model& m, const std::vector<Scalar>& d) {
-  const int n = m.label_count();
-  for (int a = 0; a < n; ++a) {
-    if (d[static_cast<size_t>(a)] != d[static_cast<size_t>(m.dual(a))]) return false;
-    for (int b = a; b < n; ++b) {
-      Scalar s(m.field);
-      for (int c : m.channels(a, b)) s += Scalar(m.field, m.fusion(a, b, c)) * d[static_cast<size_t>(c)];
-      if (s != d[static_cast<size_t>(a)] * d[static_cast<size_t>(b)]) return false;
-    }
-  }
-  return true;
+  return ball_str(b, digits);
 }
 
 // Writes z = exp(2 pi i j/m) when z^m = 1 is proved and the ball of z pins down j; returns false otherwise.
@@ -50,31 +35,20 @@ bool root_of_unity_index(const Scalar& z, long max_order, long* j_out, long* m_o
   if (m == 0) return false;
   // arg(z) * m / (2 pi) is within 1/2 of exactly one integer j (mod m); certify with balls.
   for (long prec = 64; prec <= 4096; prec *= 2) {
-    acb_t b;
-    acb_init(b);
+    AcbT b;
     z.ball(b, prec);
-    arb_t t, pi2, r;
-    arb_init(t);
-    arb_init(pi2);
-    arb_init(r);
+    ArbT t, pi2, r, half;
     acb_arg(t, b, prec);
     arb_const_pi(pi2, prec);
     arb_mul_2exp_si(pi2, pi2, 1);
     arb_div(t, t, pi2, prec);
     arb_mul_si(t, t, m, prec);
-    double mid = arf_get_d(arb_midref(t), ARF_RND_NEAR);
+    double mid = arf_get_d(arb_midref(t.get()), ARF_RND_NEAR);
     long j = std::lround(mid);
     arb_sub_si(r, t, j, prec);
     arb_abs(r, r);
-    arb_t half;
-    arb_init(half);
     arb_set_d(half, 0.5);
     bool certain = arb_lt(r, half);
-    arb_clear(half);
-    arb_clear(t);
-    arb_clear(pi2);
-    arb_clear(r);
-    acb_clear(b);
     if (certain) {
       *j_out = ((j % m) + m) % m;
       *m_out = m;
@@ -90,74 +64,10 @@ Invariants compute_invariants(const Model& m, long) {
   const int n = m.label_count();
   const FieldPtr& F = m.field;
   Invariants inv(F);
-  for (int a = 0; a < n; ++a)
-    if (m.dual(a) < 0) throw MathError(fmt::format("label {} has no dual: not a fusion category", m.labels[a]));
-  // x_a = 1/[F^{a a* a}_a]_{11}; d_a^2 = x_a x_{a*} is gauge invariant.
-  std::vector<Scalar> x;
-  for (int a = 0; a < n; ++a) {
-    int ad = m.dual(a);
-    const Scalar* f = m.f_symbol(a, ad, a, a, 0, 0);
-    if (!f || f->is_zero())
-      throw MathError(fmt::format("[F^{{a a* a}}_a]_{{11}} is zero or missing for a = {}", m.labels[a]));
-    x.push_back(f->inverse());
-  }
-  std::vector<Scalar> r;  // |d_a| candidates up to sign
-  for (int a = 0; a < n; ++a) {
-    int ad = m.dual(a);
-    if (ad == a) {
-      r.push_back(x[static_cast<size_t>(a)]);
-      continue;
-    }
-    Scalar d2 = x[static_cast<size_t>(a)] * x[static_cast<size_t>(ad)];
-    if (!d2.in_base())
-      throw MathError(fmt::format("d_{}^2 = {} involves square roots; not supported yet", m.labels[a], d2.str()));
-    Scalar s = F->sqrt(d2.to_base());
-    r.push_back(s);
-  }
-  // Signs: all positive (real > 0) when that is a character of the fusion ring, else the first consistent
-  // pattern with the fewest sign changes.
-  auto normalised = [&](std::vector<Scalar> v) {
-    for (Scalar& s : v)
-      if (s.is_real() && s.real_sign() < 0) s = -s;
-    return v;
-  };
-  std::vector<Scalar> base = normalised(r);
-  bool found = false;
-  if (is_fusion_character(m, base)) {
-    inv.dims = base;
-    found = true;
-  } else if (n <= 16) {
-    std::vector<unsigned> masks;
-    for (unsigned s = 1; s < (1u << (n - 1)); ++s) masks.push_back(s << 1);
-    std::stable_sort(masks.begin(), masks.end(),
-                     [](unsigned p, unsigned q) { return __builtin_popcount(p) < __builtin_popcount(q); });
-    for (unsigned s : masks) {
-      std::vector<Scalar> d = base;
-      for (int a = 1; a < n; ++a)
-        if (s & (1u << a)) d[static_cast<size_t>(a)] = -d[static_cast<size_t>(a)];
-      if (is_fusion_character(m, d)) {
-        inv.dims = d;
-        found = true;
-        break;
-      }
-    }
-  }
-  if (!found)
-    throw MathError("no choice of signs makes d_a = +-1/|[F^{a a* a}_a]_11| a character of the fusion rules");
-  if (!inv.dims[0].is_one()) throw MathError("d of the unit label is not 1: check the normalisation of F");
-  for (int a = 0; a < n; ++a) {
-    if (m.dual(a) != a) {
-      inv.fs.push_back(0);
-      continue;
-    }
-    Scalar nu = inv.dims[static_cast<size_t>(a)] / x[static_cast<size_t>(a)];
-    if (nu.is_one())
-      inv.fs.push_back(1);
-    else if ((-nu).is_one())
-      inv.fs.push_back(-1);
-    else
-      throw MathError(fmt::format("Frobenius-Schur indicator of {} is {}, not +-1", m.labels[a], nu.str()));
-  }
+  // d_a, nu_a and theta_a: the one computation of ribbon data (model/ribbon.hpp).
+  RibbonData rd = ribbon_data(m);
+  inv.dims = std::move(rd.dims);
+  inv.fs = std::move(rd.fs);
   for (const Scalar& d : inv.dims) inv.global_dim2 += d * d;
   if (!inv.global_dim2.in_base()) throw MathError("D^2 involves square roots; not supported yet");
   inv.global_dim = F->sqrt(inv.global_dim2.to_base());
@@ -166,15 +76,7 @@ Invariants compute_invariants(const Model& m, long) {
     return inv;
   }
   inv.braided = true;
-  for (int a = 0; a < n; ++a) {
-    Scalar s(F);
-    for (int c : m.channels(a, a)) {
-      const Scalar* rv = m.r_symbol(a, a, c);
-      if (!rv) throw MathError(fmt::format("R^{{aa}}_c missing for a = {}, c = {}", m.labels[a], m.labels[c]));
-      s += inv.dims[static_cast<size_t>(c)] * *rv;
-    }
-    inv.twists.push_back(s / inv.dims[static_cast<size_t>(a)]);
-  }
+  inv.twists = std::move(rd.twists);
   Matrix S(F, static_cast<size_t>(n), static_cast<size_t>(n)), T(F, static_cast<size_t>(n), static_cast<size_t>(n));
   Scalar Dinv = inv.global_dim.inverse();
   for (int a = 0; a < n; ++a) {

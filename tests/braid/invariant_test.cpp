@@ -93,3 +93,126 @@ TEST_CASE("braid checks on bundled models") {
   // twist of sigma: exp(2 pi i/16) (Kitaev 2006, Ising: theta_sigma = e^{i pi/8})
   CHECK(twist(m, s) == parse_expression("zeta", m.field));
 }
+
+namespace {
+
+// Kitaev, Ann. Phys. 321 (2006) 2, section 10.1, Table 1 (from memory), Ising-type nu = 3: kappa = -1,
+// d_sigma = sqrt 2, theta_sigma = e^{3 pi i/8}, theta_psi = -1, R^{ss}_1 = -e^{-3 pi i/8}, R^{ss}_psi = e^{i pi/8},
+// R^{s psi}_s R^{psi s}_s = (-i^3)^2 = -1. Written here from the table, not read from the model.
+struct Nu3 {
+  FieldPtr f;
+  Scalar e(const std::string& x) const { return parse_expression(x, f); }
+  Scalar d() const { return e("sqrt(2)"); }
+  Scalar theta() const { return e("exp(3*pi*i/8)"); }
+  Scalar r1() const { return e("-exp(-3*pi*i/8)"); }
+  Scalar rpsi() const { return e("exp(pi*i/8)"); }
+};
+
+// The nu = 3 file and the same data without the unitarity claim (a claim must not change any value).
+std::vector<Model> nu3_models() {
+  Model m = load_model(model_path("ising_nu3.toml"));
+  Model nc = m;
+  nc.claims_unitary = false;
+  return {m, nc};
+}
+
+}  // namespace
+
+TEST_CASE("Ising-type nu = 3 (indicator -1): quantum traces and link invariants of 2- and 3-strand closures") {
+  // Independent formulas (Reshetikhin-Turaev / Kitaev 2006 Appendix E, common practice):
+  //  * on two sigma strands the closure of s1^k has Q = sum_{c = 1, psi} d_c (R^{ss}_c)^k = R_1^k + R_psi^k
+  //    (both channels have d_c = 1); it is a knot for odd k (self-writhe k), a 2-component link for even k
+  //    (self-writhes 0), so I = theta^-k Q / d_sigma (odd k) or Q / d_sigma (even k);
+  //  * an n-component unlink of sigma loops has Q = d_sigma^n, so I(unlink of 2) = d_sigma;
+  //  * the closure of s1 s2 on three strands is an unknot with blackboard framing 2: Q = theta_sigma^2 d_sigma;
+  //  * the Hopf link of a and b (closure of s1^2 on (a, b)) has Q = sum_c N_{ab}^c d_c theta_c / (theta_a theta_b)
+  //    (the monodromy R^{ba}_c R^{ab}_c = theta_c/(theta_a theta_b)).
+  // With the indicator wrongly taken as +1, d_sigma = 1/[F^{sss}_s]_{11} = -sqrt 2 and every check below that is
+  // odd in d_sigma fails.
+  for (const Model& m : nu3_models()) {
+    CAPTURE(m.claims_unitary);
+    Nu3 x{m.field};
+    const int s = m.label_index("sigma"), p = m.label_index("psi");
+    REQUIRE(s >= 0);
+    REQUIRE(p >= 0);
+    for (int k = 0; k <= 6; ++k) {
+      CAPTURE(k);
+      LinkInvariant li = link_invariant(m, {s, s}, parse_word(k == 0 ? "" : fmt::format("s1^{}", k)));
+      Scalar q = x.r1().pow(k) + x.rpsi().pow(k);
+      CHECK(li.quantum_trace == q);
+      CHECK(li.components == (k % 2 ? 1 : 2));
+      CHECK(li.invariant == (k % 2 ? x.theta().pow(-k) * q / x.d() : q / x.d()));
+    }
+    CHECK(link_invariant(m, {s, s}, parse_word("")).invariant == x.d());              // unlink: d_sigma
+    CHECK(link_invariant(m, {s, s}, parse_word("s1")).invariant.is_one());            // unknot
+    CHECK(link_invariant(m, {s, s, s}, parse_word("")).quantum_trace == x.d().pow(3));
+    CHECK(link_invariant(m, {s, s, s}, parse_word("s1 s2")).quantum_trace == x.theta().pow(2) * x.d());
+    CHECK(link_invariant(m, {s, s, s}, parse_word("s1 s2")).invariant.is_one());
+    // trefoil: I = theta^-3 (R_1^3 + R_psi^3) / d_sigma, and it is not the unknot
+    LinkInvariant tref = link_invariant(m, {s, s}, parse_word("s1^3"));
+    CHECK(tref.invariant == x.theta().pow(-3) * (x.r1().pow(3) + x.rpsi().pow(3)) / x.d());
+    CHECK_FALSE(tref.invariant.is_one());
+    // Hopf links from twists and dimensions: (s, s): (1 - 1)/theta^2 = 0; (s, psi): d_s theta_s/(theta_s theta_psi)
+    CHECK(link_invariant(m, {s, s}, parse_word("s1^2")).quantum_trace.is_zero());
+    LinkInvariant sp = link_invariant(m, {s, p}, parse_word("s1^2"));
+    CHECK(sp.quantum_trace == -x.d());
+    CHECK(sp.invariant == Scalar(m.field, -1));
+    LinkInvariant ps = link_invariant(m, {p, s}, parse_word("s1^2"));
+    CHECK(ps.invariant == -x.d());  // divided by d_psi = 1
+  }
+}
+
+TEST_CASE("Ising-type nu = 3: full twists theta_c / theta_sigma^n and the quadratic relation") {
+  // The full twist (s1 ... s_{n-1})^n acts on V(sigma^n; c) as theta_c / theta_sigma^n (common practice;
+  // Kitaev 2006 Appendix E); each s_i has eigenvalues R^{ss}_1, R^{ss}_psi, so (s - R_1)(s - R_psi) = 0.
+  for (const Model& m : nu3_models()) {
+    CAPTURE(m.claims_unitary);
+    Nu3 x{m.field};
+    const int s = m.label_index("sigma");
+    Scalar theta_c[3] = {Scalar(m.field, 1), x.theta(), Scalar(m.field, -1)};
+    int tested = 0, hecke = 0;
+    for (int n = 2; n <= 5; ++n)
+      for (int c = 0; c < 3; ++c) {
+        BraidGenerators g(m, c);
+        std::vector<int> a(static_cast<size_t>(n), s);
+        if (g.space(a).dimension() == 0) continue;
+        CAPTURE(n);
+        CAPTURE(c);
+        BraidReport r = check_braid_representation(g, a);
+        CHECK(r.ok());
+        REQUIRE(r.twist_checked);
+        CHECK(r.twist_holds);
+        CHECK(*r.twist_expected == theta_c[c] / x.theta().pow(n));
+        for (const GeneratorEigen& e : r.eigen) {
+          CHECK(e.hecke_checked == (e.eigenvalues.size() == 2));  // two distinct eigenvalues from dimension 2 on
+          if (e.hecke_checked) CHECK(e.hecke_holds);
+          hecke += e.hecke_checked;
+          for (const Eigenvalue& v : e.eigenvalues) CHECK((v.value == x.r1() || v.value == x.rpsi()));
+        }
+        ++tested;
+      }
+    CHECK(tested == 6);  // n = 2, 4: c = 1, psi; n = 3, 5: c = sigma
+    CHECK(hecke > 0);
+  }
+}
+
+TEST_CASE("every bundled model: the braid layer's unlink and unknot agree with the model's ribbon data") {
+  // Unlink of two a-loops: Q = d_a^2, I = d_a; unknot with one kink: Q = theta_a d_a, I = 1 (common practice).
+  for (const auto& entry : std::filesystem::directory_iterator(zbtest::source_dir() + "/models")) {
+    if (entry.path().extension() != ".toml") continue;
+    CAPTURE(entry.path().string());
+    Model m = load_model(entry.path().string());
+    if (!m.has_r) continue;
+    RibbonData rd = ribbon_data(m);
+    for (int a = 1; a < m.label_count(); ++a) {
+      const Scalar& d = rd.dims[static_cast<size_t>(a)];
+      LinkInvariant un = link_invariant(m, {a, a}, parse_word(""));
+      CHECK(un.quantum_trace == d * d);
+      CHECK(un.invariant == d);
+      if (m.dual(a) != a) continue;  // the closure of s1 on (a, a) needs a x a -> some channel; fine for all
+      LinkInvariant kink = link_invariant(m, {a, a}, parse_word("s1"));
+      CHECK(kink.quantum_trace == rd.twists[static_cast<size_t>(a)] * d);
+      CHECK(kink.invariant.is_one());
+    }
+  }
+}

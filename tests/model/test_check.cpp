@@ -12,6 +12,7 @@
 #include "zetabraid/field/expression.hpp"
 #include "zetabraid/model/check.hpp"
 #include "zetabraid/model/families.hpp"
+#include "zetabraid/error.hpp"
 #include "zetabraid/model/load.hpp"
 
 using namespace zb;
@@ -75,7 +76,8 @@ TEST_CASE("Ising F and R values are the published ones") {
 
 TEST_CASE("every bundled model passes; the demo file fails") {
   for (const char* name : {"fibonacci", "ising", "su2_k1", "su2_k2", "su2_k3", "su2_k4", "su2_k3_even",
-                           "su2_k4_cyclotomic", "z3", "z4", "z5", "toric_code", "three_fermion", "yang_lee"}) {
+                           "su2_k4_cyclotomic", "z3", "z4", "z5", "toric_code", "three_fermion", "yang_lee",
+                           "ising_nu3"}) {
     CAPTURE(name);
     CHECK(check_model(load_model(zbtest::source_dir() + "/models/" + name + ".toml")).ok);
   }
@@ -310,4 +312,50 @@ TEST_CASE("hexagon counts and failures agree with a slow Scalar reference") {
     CHECK(r.find("hexagon")->failed == failed);
     CHECK(failed > 0);
   }
+}
+
+TEST_CASE("both arithmetics of the equation kernel agree with the slow reference on small fields and radicals") {
+  // Q(zeta_3), Q(zeta_4) (antic's quadratic representation: reduced at every step), the Fibonacci file (a square
+  // root of its own) and the Ising file (a generic field): one damaged F entry each, fixed seed.
+  std::mt19937_64 rng(20270115);
+  for (const char* name : {"z3", "z4", "fibonacci", "ising"}) {
+    Model m = load_model(zbtest::source_dir() + "/models/" + name + ".toml");
+    auto it = m.f_symbols().begin();
+    std::advance(it, static_cast<long>(rng() % m.f_symbols().size()));
+    auto key = it->first;
+    Scalar damaged = it->second + Scalar(m.field, zbtest::random_cyclo(m.field->cyclotomic(), rng, 2));
+    m.set_f_symbol(key[0], key[1], key[2], key[3], key[4], key[5], damaged);
+    SlowResult slow = slow_pentagons(m);
+    CHECK(slow.failed > 0);  // the damage is seen
+    for (bool field_kernel : {false, true})
+      for (int threads : {1, 2}) {
+        CAPTURE(name);
+        CAPTURE(field_kernel);
+        CAPTURE(threads);
+        CheckOptions opt;
+        opt.max_failures = 100000;
+        opt.force_field_kernel = field_kernel;
+        opt.threads = threads;
+        CheckReport fast = check_model(m, opt);
+        CHECK(fast.find("pentagon")->count == slow.count);
+        CHECK(fast.find("pentagon")->failed == slow.failed);
+        for (const CheckFailure& f : fast.failures)
+          if (f.check == "pentagon") {
+            auto s = slow.residuals.find(f.where);
+            REQUIRE(s != slow.residuals.end());
+            CHECK(s->second == f.residual);
+          }
+      }
+  }
+}
+
+TEST_CASE("thread counts follow the one thread policy") {
+  Model m = load_model(zbtest::source_dir() + "/models/fibonacci.toml");
+  CheckOptions opt;
+  opt.threads = -1;
+  CHECK_THROWS_AS(check_model(m, opt), InputError);  // negative counts are a usage error (detail/parallel.hpp)
+  CHECK_THROWS_AS(check_equations_only(m, -2), InputError);
+  opt.threads = 0;  // all cores, at most 8
+  CHECK(check_model(m, opt).ok);
+  CHECK(check_equations_only(m, 0).pentagons == check_model(m).find("pentagon")->count);
 }

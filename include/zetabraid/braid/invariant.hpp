@@ -1,9 +1,6 @@
-// Ribbon data read off the model (quantum dimensions, twists) and the link invariant of a braid closure.
-//
-// Quantum dimension: d_a = 1/|[F^{a a* a}_a]_{0 0}| when the model claims a unitary gauge (then d_a > 0),
-// otherwise d_a = 1/[F^{a a* a}_a]_{0 0} (Frobenius-Schur indicator taken as +1; documented limitation).
-// Twist: theta_a = (1/d_a) sum_c d_c R^{a a}_c (quantum trace of the self-braiding; Kitaev 2006, eq. (223)-type
-// identity, common practice) -- for a = a* only uses R^{aa}; for other a the same formula applies.
+// The link invariant of a braid closure. Quantum dimensions d_a and twists theta_a are the model's
+// (model/ribbon.hpp: ribbon_data, quantum_dimension, twist), with the model's Frobenius-Schur indicators -- the
+// braid layer computes no ribbon data of its own.
 //
 // Link invariant of the closure of a braid w on strands a_1..a_n (the word must return each label to its
 // position): the quantum trace
@@ -18,11 +15,9 @@
 #include <vector>
 
 #include "zetabraid/braid/generators.hpp"
+#include "zetabraid/model/ribbon.hpp"
 
 namespace zb {
-
-Scalar quantum_dimension(const Model& model, int a);
-Scalar twist(const Model& model, int a);
 
 struct LinkInvariant {
   Scalar quantum_trace;     ///< Q(w)

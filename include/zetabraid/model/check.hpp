@@ -34,7 +34,7 @@ struct CheckFailure {
 };
 
 struct CheckOptions {
-  int threads = 0;                  ///< 0: std::thread::hardware_concurrency (at most 8)
+  int threads = 0;                  ///< thread_count(threads) workers (detail/parallel.hpp): 0 = all cores, at most 8
   size_t max_failures = 100;        ///< failures listed per check (all are counted)
   long ball_digits = 15;
   /// Use the number-field kernel even when the integer kernel applies (for tests comparing the two).
@@ -55,14 +55,10 @@ struct CheckReport {
 CheckReport check_model(const Model& m, const CheckOptions& opt = {});
 
 /// Pentagon and hexagon equations only (for benchmarks): returns the number of equations and failures.
+/// threads as in CheckOptions.
 struct EquationCount {
   long pentagons = 0, hexagons = 0, failed = 0;
 };
 EquationCount check_equations_only(const Model& m, int threads = 1);
-/// The same equations in complex double (for comparison in benchmarks): returns the number of equations and
-/// the largest |residual| seen. Not a check: floating point decides nothing in zetabraid.
-/// loop_seconds (optional) receives the time of the evaluation loops alone (tables excluded).
-EquationCount evaluate_equations_double(const Model& m, double* max_residual, double* loop_seconds = nullptr,
-                                        int repeat = 1);
 
 }  // namespace zb

@@ -9,6 +9,7 @@
 
 namespace zb {
 
+/// d_a, nu_a and theta_a are those of ribbon_data() (model/ribbon.hpp), the one place they are computed.
 struct Invariants {
   std::vector<Scalar> dims;          ///< quantum dimensions d_a
   Scalar global_dim2;                ///< D^2 = sum_a d_a^2

@@ -52,6 +52,16 @@ struct Model {
   /// The dual a* (N_{a a*}^0 = 1), or -1 if none.
   int dual(int a) const;
 
+  /// One block F^{abc}_d: its outer labels, row labels e and column labels f (as left_channels/right_channels).
+  struct FBlock {
+    int a, b, c, d;
+    std::vector<int> rows, cols;
+  };
+  /// Calls fn(const FBlock&) for every (a, b, c, d) whose block has a row or a column, in label order (a slowest,
+  /// d fastest): the one loop over F-blocks. Callers that need square or nonempty blocks test rows/cols.
+  template <class Fn>
+  void for_each_f_block(Fn&& fn) const;
+
   /// [F^{abc}_d]_{ef}; nullptr when not stored (a zero, or not admissible).
   const Scalar* f_symbol(int a, int b, int c, int d, int e, int f) const;
   void set_f_symbol(int a, int b, int c, int d, int e, int f, Scalar v);
@@ -84,5 +94,35 @@ struct Model {
   // Fast lookup for hot loops (pentagon checks): flattened index -> pointer into f_.
   std::unordered_map<std::uint64_t, const Scalar*> f_index_;
 };
+
+template <class Fn>
+void Model::for_each_f_block(Fn&& fn) const {
+  const int nl = label_count();
+  std::vector<std::vector<int>> left(n()), right(n());
+  FBlock blk{0, 0, 0, 0, {}, {}};
+  for (int a = 0; a < nl; ++a)
+    for (int b = 0; b < nl; ++b) {
+      const std::vector<int> ab = channels(a, b);
+      for (int c = 0; c < nl; ++c) {
+        for (auto& v : left) v.clear();
+        for (auto& v : right) v.clear();
+        for (int e : ab)
+          for (int d = 0; d < nl; ++d)
+            if (fusion(e, c, d)) left[static_cast<size_t>(d)].push_back(e);
+        for (int f = 0; f < nl; ++f) {
+          if (!fusion(b, c, f)) continue;
+          for (int d = 0; d < nl; ++d)
+            if (fusion(a, f, d)) right[static_cast<size_t>(d)].push_back(f);
+        }
+        for (int d = 0; d < nl; ++d) {
+          if (left[static_cast<size_t>(d)].empty() && right[static_cast<size_t>(d)].empty()) continue;
+          blk.a = a, blk.b = b, blk.c = c, blk.d = d;
+          blk.rows = left[static_cast<size_t>(d)];
+          blk.cols = right[static_cast<size_t>(d)];
+          fn(static_cast<const FBlock&>(blk));
+        }
+      }
+    }
+}
 
 }  // namespace zb
