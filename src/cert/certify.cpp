@@ -333,7 +333,7 @@ bool modular_verdict(CertifyResult* res, const std::vector<const Matrix*>& lette
   ModularZeroResult z = modular_zero_test(letters, keep.basis, &post, nullptr, mo);
   if (!z.zero && !z.nonzero) return false;
   res->method = Method::kModular;
-  res->verdict = z.zero ? "leak-free" : "leaks";
+  res->verdict = z.zero ? Verdict::kLeakFree : Verdict::kLeaks;
   res->precision = mo.ball_precision;
   res->modular = std::move(z);
   return true;
@@ -376,7 +376,7 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
     po.threads = opt.threads;
     Matrix img = letters.empty() ? keep.basis : word_product_columns(letters, keep.basis, po);
     ExactLeak el = exact_leakage(keep, img, res.unitary);
-    res.verdict = el.leak_free ? "leak-free" : "leaks";
+    res.verdict = el.leak_free ? Verdict::kLeakFree : Verdict::kLeaks;
     res.leakage = el.leakage;
     res.action = el.action;
     res.image = std::move(img);
@@ -411,8 +411,9 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
   }
   res.precision = prec;
   res.leakage_ball = ball_str(leak, 20);
-  res.verdict = interval_bounds(res.leakage_ball, prec, &res.leakage_upper, &res.leakage_lower) ? "leaks"
-                                                                                                : "leakage-bounded";
+  res.verdict = interval_bounds(res.leakage_ball, prec, &res.leakage_upper, &res.leakage_lower)
+                    ? Verdict::kLeaks
+                    : Verdict::kLeakageBounded;
   arb_clear(leak);
   acb_mat_clear(img);
   return res;

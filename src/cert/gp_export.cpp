@@ -135,7 +135,7 @@ gen(an, tot, k) = {
     groups += "]";
   }
   g += fmt::format("GROUPS = {};\n", groups);
-  g += fmt::format("VERDICT = \"{}\";\nUNITARY = {};\n", r.verdict, m.claims_unitary ? 1 : 0);
+  g += fmt::format("VERDICT = \"{}\";\nUNITARY = {};\n", verdict_name(r.verdict), m.claims_unitary ? 1 : 0);
   g += fmt::format("LEAK = {};\n", r.leakage ? scalar_gp(*r.leakage) : "0");
   g += fmt::format("HAVELEAK = {};\n", r.leakage ? 1 : 0);
   g += fmt::format("UPPER = {};\n", r.leakage_upper.empty() ? "0" : r.leakage_upper);

@@ -360,7 +360,7 @@ void add_braid_commands(CLI::App& app, Action& action) {
                      {"upper", r.leakage_upper.empty() ? ojson(nullptr) : ojson(r.leakage_upper)},
                      {"lower", r.leakage_lower.empty() ? ojson(nullptr) : ojson(r.leakage_lower)}};
           if (!r.unitary) leak["note"] = "the leakage value needs a model that claims a unitary gauge";
-          ojson out{{"verdict", r.verdict},
+          ojson out{{"verdict", verdict_name(r.verdict)},
                     {"method", method_name(r.method)},
                     {"dimension", r.dimension},
                     {"kept_dimension", r.kept},
@@ -383,7 +383,7 @@ void add_braid_commands(CLI::App& app, Action& action) {
                      o->total, r.dimension, kind == "charges" ? spec : kind, r.kept);
           fmt::print("word: {} letters; method: {}{}\n", r.letters, method_name(r.method),
                      r.method == Method::kInterval ? fmt::format(" ({} bits)", r.precision) : std::string());
-          fmt::print("verdict: {}\n", r.verdict);
+          fmt::print("verdict: {}\n", verdict_name(r.verdict));
           if (r.leakage)
             fmt::print("leakage ||P_out rho(w) P_in||_F^2 = {}\n  enclosure: {}\n", r.leakage->str(), r.leakage_ball);
           else if (r.method == Method::kExact && !r.unitary)
@@ -405,13 +405,13 @@ void add_braid_commands(CLI::App& app, Action& action) {
           }
           if (r.action) {
             fmt::print("induced action on the kept subspace ({} x {}){}:\n{}", r.action->rows(), r.action->cols(),
-                       r.verdict == "leak-free" ? "" : " (compression P_in rho(w) P_in)",
+                       r.verdict == Verdict::kLeakFree ? "" : " (compression P_in rho(w) P_in)",
                        r.kept <= 8 ? matrix_text(*r.action, "  ") : std::string("  (omitted: use --json)\n"));
           }
           if (!o->out.empty()) fmt::print("certificate written to {}\n", o->out);
           if (!o->gp.empty()) fmt::print("PARI/GP re-check script written to {}\n", o->gp);
         }
-        return r.verdict == "leaks" ? 1 : 0;
+        return r.verdict == Verdict::kLeaks ? 1 : 0;
       };
     });
   }

@@ -56,12 +56,12 @@ TEST_CASE("two-qubit Fibonacci encoding: facts of the trade") {
   CertifyOptions exact;
   exact.method = Method::kExact;
   for (int trial = 0; trial < 6; ++trial) {
-    CHECK(certify(g, six, keep, random_word(rng, {1, 2}, 12), exact).verdict == "leak-free");
-    CHECK(certify(g, six, keep, random_word(rng, {4, 5}, 12), exact).verdict == "leak-free");
-    CHECK(certify(g, six, keep, random_word(rng, {1, 2, 4, 5}, 12), exact).verdict == "leak-free");
+    CHECK(certify(g, six, keep, random_word(rng, {1, 2}, 12), exact).verdict == Verdict::kLeakFree);
+    CHECK(certify(g, six, keep, random_word(rng, {4, 5}, 12), exact).verdict == Verdict::kLeakFree);
+    CHECK(certify(g, six, keep, random_word(rng, {1, 2, 4, 5}, 12), exact).verdict == Verdict::kLeakFree);
   }
   CertifyResult r = certify(g, six, keep, parse_word("s3"), exact);
-  CHECK(r.verdict == "leaks");
+  CHECK(r.verdict == Verdict::kLeaks);
   REQUIRE(r.leakage);
   CHECK(r.leakage->real_sign() > 0);
   // negative control: a leak-free word's leakage is exactly zero and the interval method never says "= 0"
@@ -70,7 +70,7 @@ TEST_CASE("two-qubit Fibonacci encoding: facts of the trade") {
   CertifyOptions iv;
   iv.method = Method::kInterval;
   CertifyResult lfi = certify(g, six, keep, parse_word("s1 s2^-1 s1"), iv);
-  CHECK(lfi.verdict == "leakage-bounded");
+  CHECK(lfi.verdict == Verdict::kLeakageBounded);
   // the action of a leak-free braid on the kept space is unitary
   CHECK((*lf.action * lf.action->adjoint()).is_identity());
   // leakage of a unitary map is the kept norm minus the part staying inside: 0 <= leakage <= kept dimension
@@ -93,8 +93,8 @@ TEST_CASE("interval enclosures contain the exact leakage (fixed seeds)") {
   for (int trial = 0; trial < 5; ++trial) {
     Word w = random_word(rng, {1, 2, 3, 4, 5}, 40);
     CertifyResult a = certify(g, six, keep, w, ex), b = certify(g, six, keep, w, iv);
-    CHECK(a.verdict == "leaks");
-    CHECK(b.verdict == "leaks");
+    CHECK(a.verdict == Verdict::kLeaks);
+    CHECK(b.verdict == Verdict::kLeaks);
     arb_t x, y;
     arb_init(x);
     arb_init(y);
@@ -125,11 +125,11 @@ TEST_CASE("non-coordinate kept spaces: charge of anyons 2-3, and explicit basis 
   CertifyOptions ex;
   ex.method = Method::kExact;
   // s2 exchanges anyons 2 and 3 inside the group: leak-free; s1 and s3 move anyons across it: leaks
-  CHECK(certify(g, four, k, parse_word("s2 s2 s2^-1"), ex).verdict == "leak-free");
-  CHECK(certify(g, four, k, parse_word("s1"), ex).verdict == "leaks");
-  CHECK(certify(g, four, k, parse_word("s3"), ex).verdict == "leaks");
+  CHECK(certify(g, four, k, parse_word("s2 s2 s2^-1"), ex).verdict == Verdict::kLeakFree);
+  CHECK(certify(g, four, k, parse_word("s1"), ex).verdict == Verdict::kLeaks);
+  CHECK(certify(g, four, k, parse_word("s3"), ex).verdict == Verdict::kLeaks);
   // a braid moving the pair as a unit keeps its charge: s1 s2 moves anyon 1 across the pair (2,3)... then back
-  CHECK(certify(g, four, k, parse_word("s1 s2 s2^-1 s1^-1"), ex).verdict == "leak-free");
+  CHECK(certify(g, four, k, parse_word("s1 s2 s2^-1 s1^-1"), ex).verdict == Verdict::kLeakFree);
   // the same kept space given as basis vectors (columns of the projector) gives the same verdicts and leakage
   std::string text;
   for (size_t j = 0; j < k.kept(); ++j) {
@@ -173,11 +173,11 @@ TEST_CASE("two qubits inside eight anyons: a non-coordinate kept space") {
   ex.method = Method::kExact;
   std::mt19937_64 rng(99);
   for (int trial = 0; trial < 3; ++trial)
-    CHECK(certify(g, eight, keep, random_word(rng, {1, 2, 4, 5, 7}, 10), ex).verdict == "leak-free");
+    CHECK(certify(g, eight, keep, random_word(rng, {1, 2, 4, 5, 7}, 10), ex).verdict == Verdict::kLeakFree);
   for (const char* w : {"s3", "s6", "s3 s6 s1", "s6^-1 s5"}) {
     CAPTURE(w);
     CertifyResult r = certify(g, eight, keep, parse_word(w), ex);
-    CHECK(r.verdict == "leaks");
+    CHECK(r.verdict == Verdict::kLeaks);
     const Matrix& v = keep.basis;
     Matrix gi = (v.adjoint() * v).inverse();
     Matrix b = v.adjoint() * *r.image;

@@ -61,9 +61,9 @@ TEST_CASE("modular verdicts equal the exact engine's on random two-qubit words (
     CAPTURE(seed);
     CHECK(a.verdict == b.verdict);
     REQUIRE(b.modular);
-    CHECK(b.modular->zero == (b.verdict == "leak-free"));
+    CHECK(b.modular->zero == (b.verdict == Verdict::kLeakFree));
     CHECK(!b.leakage);
-    (a.verdict == "leak-free" ? free : leaks)++;
+    (a.verdict == Verdict::kLeakFree ? free : leaks)++;
   }
   CHECK(free > 0);
   CHECK(leaks > 0);
@@ -185,6 +185,6 @@ TEST_CASE("auto method, model without a unitary gauge, long word: a nonzero imag
     Word w = parse_word(random_word_text(seed, 60, seed % 2 ? std::vector<int>{1, 2, 3, 4, 5} : std::vector<int>{1, 2, 4, 5}));
     CertifyResult a = certify(g, six, keep, w, au), e = certify(g, six, keep, w, ex);
     CHECK(a.verdict == e.verdict);
-    CHECK(a.method == (e.verdict == "leaks" ? Method::kModular : Method::kExact));
+    CHECK(a.method == (e.verdict == Verdict::kLeaks ? Method::kModular : Method::kExact));
   }
 }
