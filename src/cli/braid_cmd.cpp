@@ -10,6 +10,7 @@
 #include "zetabraid/braid/checks.hpp"
 #include "zetabraid/braid/invariant.hpp"
 #include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/cert/checker/verify.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/model/load.hpp"
 
@@ -420,18 +421,25 @@ void add_braid_commands(CLI::App& app, Action& action) {
   {
     auto* c = app.add_subcommand("verify", "re-check a certificate independently (exit 0 verified, 1 rejected)");
     struct O {
-      std::string cert, model, via = "exact";
+      std::string cert, via = "exact";
+      VerifyOptions opt;
       bool json = false;
     };
     auto o = std::make_shared<O>();
     c->add_option("certificate", o->cert, "certificate file (JSON)")->required();
-    c->add_option("--model", o->model, "model file to use instead of the path stored in the certificate");
+    c->add_option("--model", o->opt.model_override,
+                  "model file to use instead of model.file of the certificate (needed when model.file is absolute "
+                  "or leaves the certificate's folder)");
     c->add_option("--via", o->via, "exact | modular: how an exact certificate's image is re-checked (left-to-right "
                                    "in the number field, or modular images with a norm bound)");
+    c->add_flag("--plain-interval", o->opt.plain_interval,
+                "interval certificates: re-check with a plain left-to-right ball product even when every letter is "
+                "unitary (a slower cross-check of the default error-bound propagation)");
     c->add_flag("--json", o->json, "one JSON object {verified, reason, summary}");
     c->callback([o, &action] {
       action = [o] {
-        VerifyOutcome v = verify_certificate(o->cert, o->model, o->via);
+        o->opt.route = parse_route(o->via);
+        VerifyOutcome v = verify_certificate(o->cert, o->opt);
         if (o->json)
           fmt::print("{}\n", ojson{{"verified", v.verified}, {"reason", v.reason}, {"summary", v.summary}}.dump());
         else if (v.verified)

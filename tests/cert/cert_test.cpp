@@ -10,6 +10,7 @@
 #include "../braid/fib_model.hpp"
 #include "support/helpers.hpp"
 #include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/cert/checker/verify.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/field/expression.hpp"
 #include "zetabraid/model/load.hpp"
@@ -147,11 +148,11 @@ TEST_CASE("non-coordinate kept spaces: charge of anyons 2-3, and explicit basis 
     auto r = zbtest::run(zbtest::cli() + " certify --model " + fib_file() + " --anyons 't t t t' --total t --keep-file " +
                          d + "/v2.txt --word s2 --out " + cert);
     CHECK(r.status == 1);
-    CHECK(zbtest::run(zbtest::cli() + " verify " + cert).status == 0);
+    CHECK(zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + cert).status == 0);
     auto j = nlohmann::ordered_json::parse(slurp(cert));
     j["field"]["radicands"].push_back("3");  // an extra radicand nobody needs is rejected
     spit(cert, j.dump(2) + "\n");
-    CHECK(zbtest::run(zbtest::cli() + " verify " + cert).status == 1);
+    CHECK(zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + cert).status == 1);
   }
   CHECK_THROWS_WITH_AS(subspace_from_text(sp, "1, 0\n", "v.txt"), doctest::Contains("v.txt:1"), InputError);
   CHECK_THROWS_WITH_AS(subspace_from_text(sp, "1, 0, 0\n2, zeta +, 0", "v.txt"),
@@ -260,7 +261,7 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
     std::string text = slurp(a);
     REQUIRE(!text.empty());
     CHECK(text == slurp(b));
-    r = zbtest::run(zbtest::cli() + " verify " + a);
+    r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + a);
     CHECK(r.status == 0);
     CHECK(r.out.rfind("VERIFIED", 0) == 0);
     // PARI/GP, run with no zetabraid at all, agrees
@@ -334,7 +335,7 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
       auto jt = j0;
       edit(jt);
       spit(d + "/t.json", jt.dump(2) + "\n");
-      r = zbtest::run(zbtest::cli() + " verify " + d + "/t.json");
+      r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + d + "/t.json");
       CHECK(r.status == 1);
       CHECK(r.out.rfind("REJECTED", 0) == 0);
     }
@@ -348,10 +349,10 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
     CHECK(r.status == 0);
     // not JSON at all
     spit(d + "/t.json", text.substr(0, text.size() / 2));
-    CHECK(zbtest::run(zbtest::cli() + " verify " + d + "/t.json").status == 1);
+    CHECK(zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + d + "/t.json").status == 1);
   }
   // unreadable certificate file: an input error
-  CHECK(zbtest::run(zbtest::cli() + " verify " + d + "/does-not-exist.json").status == 2);
+  CHECK(zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + d + "/does-not-exist.json").status == 2);
   std::filesystem::remove_all(d);
 }
 
@@ -373,7 +374,7 @@ TEST_CASE("mixed anyon types: pure braids of Ising sigma and psi anyons, verifie
     REQUIRE(r.status <= 1);
     std::string verdict = nlohmann::json::parse(r.out)["verdict"];
     if (!c.verdict.empty()) CHECK(verdict == c.verdict);
-    CHECK(zbtest::run(zbtest::cli() + " verify " + a).status == 0);
+    CHECK(zbtest::run(zbtest::cli() + " verify --model " + ising + " " + a).status == 0);
     if (zbtest::have_gp()) CHECK(zbtest::gp(slurp(g)).find("zetabraid-gp: verified: " + verdict) != std::string::npos);
   }
   // a word that permutes the anyon types cannot be certified
@@ -393,7 +394,7 @@ TEST_CASE("verify rejects a certificate of a leaking word with an honest-looking
   auto j = nlohmann::ordered_json::parse(slurp(a));
   j["word"]["letters"] = "3";
   spit(a, j.dump(2) + "\n");
-  auto r = zbtest::run(zbtest::cli() + " verify " + a);
+  auto r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + a);
   CHECK(r.status == 1);
   std::filesystem::remove_all(d);
 }

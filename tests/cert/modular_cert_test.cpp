@@ -38,7 +38,7 @@ std::string random_word_text(unsigned seed, size_t len, const std::vector<int>& 
 
 zbtest::RunResult verify_json(const std::string& dir, const ojson& j, const std::string& extra = "") {
   zbtest::spit(dir + "/t.json", j.dump(2) + "\n");
-  return zbtest::run(zbtest::cli() + " verify " + extra + " " + dir + "/t.json");
+  return zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + extra + " " + dir + "/t.json");
 }
 
 }  // namespace
@@ -83,7 +83,7 @@ TEST_CASE("modular certificates: verified, deterministic, every tampered proof r
     CHECK(r.status == (name == "free" ? 0 : 1));
     zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --threads 2 --out " + b));
     CHECK(zbtest::slurp(a) == zbtest::slurp(b));  // same bytes at any thread count
-    r = zbtest::run(zbtest::cli() + " verify " + a);
+    r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + a);
     CHECK(r.status == 0);
     CHECK(r.out.rfind("VERIFIED", 0) == 0);
     // The exact engine agrees.
@@ -141,7 +141,7 @@ TEST_CASE("verify --via modular re-checks an exact certificate's image by modula
   zbtest::spit(d + "/w.txt", random_word_text(9, 150, {1, 2, 3, 4, 5}));
   std::string a = d + "/e.json";
   zbtest::run(certify_cmd("t t t t t t", "1-3:t,4-6:t", d + "/w.txt", "--method exact --out " + a));
-  auto r = zbtest::run(zbtest::cli() + " verify --via modular " + a);
+  auto r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " --via modular " + a);
   CHECK(r.status == 0);
   CHECK(r.out.find("image checked mod") != std::string::npos);
   // Negative control: one image entry changed by 1 is caught by the images alone.
@@ -150,7 +150,7 @@ TEST_CASE("verify --via modular re-checks an exact certificate's image by modula
   r = verify_json(d, j, "--via modular");
   CHECK(r.status == 1);
   CHECK(r.out.find("differs mod") != std::string::npos);
-  r = zbtest::run(zbtest::cli() + " verify --via nonsense " + a, true);
+  r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " --via nonsense " + a, true);
   CHECK(r.status == 2);
 }
 
