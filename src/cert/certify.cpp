@@ -48,13 +48,16 @@ void arf_to_fmpq(fmpq_t out, const arf_t x) {
 std::string decimal_round(const arf_t x, int digits, bool up) {
   if (arf_is_zero(x)) return "0";
   if (arf_sgn(x) < 0) throw MathError("decimal bound of a negative number");
+  if (!arf_is_finite(x)) throw MathError("decimal bound of a non-finite number");
+  // k = floor(log10 x) estimated from the binary exponent (a double of x itself may overflow to infinity), then
+  // corrected exactly below
+  const double log2x = static_cast<double>(arf_abs_bound_lt_2exp_si(x)) - 1.0;
+  if (std::fabs(log2x) > 1e8) throw MathError("decimal bound of a number out of range");
   fmpq_t q, t;
   fmpq_init(q);
   fmpq_init(t);
   arf_to_fmpq(q, x);
-  // k = floor(log10 q) estimated from a double, then corrected exactly
-  double approx = arf_get_d(x, ARF_RND_NEAR);
-  long k = static_cast<long>(std::floor(std::log10(approx)));
+  long k = static_cast<long>(std::floor(log2x * 0.30102999566398120));
   fmpz_t n, p10, lo, hi;
   fmpz_init(n);
   fmpz_init(p10);
@@ -62,7 +65,7 @@ std::string decimal_round(const arf_t x, int digits, bool up) {
   fmpz_init(hi);
   fmpz_ui_pow_ui(lo, 10, static_cast<ulong>(digits - 1));
   fmpz_ui_pow_ui(hi, 10, static_cast<ulong>(digits));
-  for (int iter = 0; iter < 8; ++iter) {
+  for (;;) {  // the estimate is within one or two of k: a few steps
     long s = digits - 1 - k;  // scale q by 10^s
     fmpz_ui_pow_ui(p10, 10, static_cast<ulong>(s >= 0 ? s : -s));
     if (s >= 0)
@@ -152,7 +155,7 @@ bool parse_decimal(arb_t x, const std::string& s, long prec) {
 bool interval_bounds(const std::string& ball, long prec, std::string* upper, std::string* lower) {
   arb_t b;
   arb_init(b);
-  if (arb_set_str(b, ball.c_str(), 128) != 0) {
+  if (arb_set_str(b, ball.c_str(), 128) != 0 || !arb_is_finite(b)) {
     arb_clear(b);
     throw MathError("malformed enclosure " + ball);
   }
