@@ -53,12 +53,13 @@ std::string scalar_gp(const Scalar& x) {
   if (x.is_zero()) return "E(0)";
   std::string s;
   for (const auto& [mask, c] : x.terms()) {
-    std::string mono = "(" + cyclo_gp(c) + ")";
+    std::string mono = fmt::format("({})", cyclo_gp(c));
     for (int j = 0; j < 62; ++j)
       if (mask & (RadicalMask(1) << j)) mono += fmt::format("*s{}", j + 1);
-    s += (s.empty() ? "" : " + ") + mono;
+    if (!s.empty()) s += " + ";
+    s += mono;
   }
-  return "E(" + s + ")";
+  return fmt::format("E({})", s);
 }
 
 std::string matrix_gp(const Matrix& m) {
@@ -66,9 +67,12 @@ std::string matrix_gp(const Matrix& m) {
   std::string s = "[";
   for (size_t i = 0; i < m.rows(); ++i) {
     if (i) s += "; ";
-    for (size_t j = 0; j < m.cols(); ++j) s += (j ? ", " : "") + scalar_gp(m(i, j));
+    for (size_t j = 0; j < m.cols(); ++j) {
+      if (j) s += ", ";
+      s += scalar_gp(m(i, j));
+    }
   }
-  return "Mat(" + s + "])";  // Mat(): a 1 x k or 1 x 1 literal would otherwise be a vector
+  return fmt::format("Mat({}])", s);  // Mat(): a 1 x k or 1 x 1 literal would otherwise be a vector
 }
 
 }  // namespace
@@ -95,7 +99,7 @@ std::string export_gp(const CertificateInputs& in, const CertifyResult& r) {
   g += fmt::format("NC = {};\nPHI = polcyclo(NC, z);\n", f->conductor());
   std::string e = "Mod(p, PHI)";
   for (int j = 1; j <= nr; ++j) e = fmt::format("Mod({}, s{}^2 - ({}))", e, j, cyclo_gp(f->radicand(j - 1)));
-  g += "E(p) = " + e + ";\n";
+  g += fmt::format("E(p) = {};\n", e);
   g += "cj(x) = E(subst(liftall(x), z, z^(NC-1)));  \\\\ complex conjugation (fixes every s_j)\n";
   g += "ct(M) = my(sz = matsize(M)); matrix(sz[2], sz[1], i, j, cj(M[j, i]));  \\\\ conjugate transpose\n";
   g += "num(x) = my(p = liftall(x)); p = subst(p, z, exp(2*Pi*I/NC));";
@@ -148,11 +152,11 @@ gen(an, tot, k) = {
 }
 )GP";
   std::string an = "[";
-  for (size_t i = 0; i < in.anyons.size(); ++i) an += (i ? "," : "") + std::to_string(in.anyons[i] + 1);
+  for (size_t i = 0; i < in.anyons.size(); ++i) an += fmt::format("{}{}", i ? "," : "", in.anyons[i] + 1);
   an += "]";
   g += fmt::format("AN = {};\nTOT = {};\n", an, in.total + 1);
   std::string word = "[";
-  for (size_t i = 0; i < in.word->size(); ++i) word += (i ? "," : "") + std::to_string(in.word->letters[i]);
+  for (size_t i = 0; i < in.word->size(); ++i) word += fmt::format("{}{}", i ? "," : "", in.word->letters[i]);
   word += "]";
   g += fmt::format("WORD = {};\n", word);
   g += fmt::format("V = {};\n", matrix_gp(in.keep->basis));
