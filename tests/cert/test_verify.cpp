@@ -208,7 +208,14 @@ TEST_CASE("verify: duplicate keys, missing keys and non-objects are rejected wit
   for (const char* key : {"format", "version", "model", "word", "claim", "proof"}) CHECK(r.out.find(key) != std::string::npos);
   CHECK(r.out.find("missing keys") != std::string::npos);
   for (const char* junk : {"[]", "null", "\"x\"", "1", ""}) CHECK(rejected(verify_text(d, junk)));
+  // exact values only in the canonical form of section 6 (one text per value): "2/2" for 1 is a deviation
   ojson j = j0;
+  REQUIRE(j["hints"]["image"][0][0].is_string());
+  j["hints"]["image"][0][0] = "(" + j["hints"]["image"][0][0].get<std::string>() + ")*2/2";
+  r = verify_json(d, j);
+  CHECK(rejected(r));
+  CHECK(r.out.find("canonical form") != std::string::npos);
+  j = j0;
   j["claim"].erase("leakage");
   r = verify_json(d, j);
   CHECK(rejected(r));

@@ -71,11 +71,15 @@ void expect_null(const json& v, const std::string& where) {
 
 Scalar scalar_of(const json& v, const FieldPtr& f, const std::string& where) {
   std::string s = str_of(v, where);
+  Scalar x(f);
   try {
-    return parse_expression(s, f);
+    x = parse_expression(s, f);
   } catch (const std::exception& e) {
     reject(fmt::format("{}: not an exact expression: {}", where, e.what()));
   }
+  // exact values are written in the canonical form of Scalar::str (section 6): one text per value
+  if (x.str() != s) reject(fmt::format("{}: \"{}\" is not in canonical form (\"{}\")", where, s, x.str()));
+  return x;
 }
 
 Matrix matrix_of_rows(const json& v, size_t rows, size_t cols, const FieldPtr& f, const std::string& where) {
