@@ -6,7 +6,7 @@
 #include <fstream>
 
 #include "fuzz_common.hpp"
-#include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/cert/checker/verify.hpp"
 
 namespace {
 std::string workdir() {

@@ -89,7 +89,7 @@ std::string certificate_json(const CertificateInputs& in, const CertifyResult& r
   leak["ball"] = or_null(r.leakage_ball);
   leak["upper"] = or_null(r.leakage_upper);
   leak["lower"] = or_null(r.leakage_lower);
-  c["claim"] = {{"verdict", r.verdict}, {"leakage", leak}};
+  c["claim"] = {{"verdict", verdict_name(r.verdict)}, {"leakage", leak}};
   c["method"] = {{"name", method_name(r.method)}, {"precision_bits", r.precision}};
   c["hints"] = {{"image", r.image ? matrix_rows(*r.image) : ojson(nullptr)},
                 {"action", r.action ? matrix_rows(*r.action) : ojson(nullptr)}};

@@ -49,13 +49,16 @@ void arf_to_fmpq(fmpq_t out, const arf_t x) {
 std::string decimal_round(const arf_t x, int digits, bool up) {
   if (arf_is_zero(x)) return "0";
   if (arf_sgn(x) < 0) throw MathError("decimal bound of a negative number");
+  if (!arf_is_finite(x)) throw MathError("decimal bound of a non-finite number");
+  // k = floor(log10 x) estimated from the binary exponent (a double of x itself may overflow to infinity), then
+  // corrected exactly below
+  const double log2x = static_cast<double>(arf_abs_bound_lt_2exp_si(x)) - 1.0;
+  if (std::fabs(log2x) > 1e8) throw MathError("decimal bound of a number out of range");
   fmpq_t q, t;
   fmpq_init(q);
   fmpq_init(t);
   arf_to_fmpq(q, x);
-  // k = floor(log10 q) estimated from a double, then corrected exactly
-  double approx = arf_get_d(x, ARF_RND_NEAR);
-  long k = static_cast<long>(std::floor(std::log10(approx)));
+  long k = static_cast<long>(std::floor(log2x * 0.30102999566398120));
   fmpz_t n, p10, lo, hi;
   fmpz_init(n);
   fmpz_init(p10);
@@ -63,7 +66,7 @@ std::string decimal_round(const arf_t x, int digits, bool up) {
   fmpz_init(hi);
   fmpz_ui_pow_ui(lo, 10, static_cast<ulong>(digits - 1));
   fmpz_ui_pow_ui(hi, 10, static_cast<ulong>(digits));
-  for (int iter = 0; iter < 8; ++iter) {
+  for (;;) {  // the estimate is within one or two of k: a few steps
     long s = digits - 1 - k;  // scale q by 10^s
     fmpz_ui_pow_ui(p10, 10, static_cast<ulong>(s >= 0 ? s : -s));
     if (s >= 0)
@@ -153,7 +156,7 @@ bool parse_decimal(arb_t x, const std::string& s, long prec) {
 bool interval_bounds(const std::string& ball, long prec, std::string* upper, std::string* lower) {
   arb_t b;
   arb_init(b);
-  if (arb_set_str(b, ball.c_str(), 128) != 0) {
+  if (arb_set_str(b, ball.c_str(), 128) != 0 || !arb_is_finite(b)) {
     arb_clear(b);
     throw MathError("malformed enclosure " + ball);
   }
@@ -334,7 +337,7 @@ bool modular_verdict(CertifyResult* res, const IndexedWord& letters, const Subsp
   ModularZeroResult z = modular_zero_test(letters, keep.basis, &post, nullptr, mo);
   if (!z.zero && !z.nonzero) return false;
   res->method = Method::kModular;
-  res->verdict = z.zero ? "leak-free" : "leaks";
+  res->verdict = z.zero ? Verdict::kLeakFree : Verdict::kLeaks;
   res->precision = mo.ball_precision;
   res->modular = std::move(z);
   return true;
@@ -377,7 +380,7 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
     po.threads = opt.threads;
     Matrix img = letters.empty() ? keep.basis : word_product_columns(letters, keep.basis, po);
     ExactLeak el = exact_leakage(keep, img, res.unitary);
-    res.verdict = el.leak_free ? "leak-free" : "leaks";
+    res.verdict = el.leak_free ? Verdict::kLeakFree : Verdict::kLeaks;
     res.leakage = el.leakage;
     res.action = el.action;
     res.image = std::move(img);
@@ -412,8 +415,9 @@ CertifyResult certify(BraidGenerators& gens, const std::vector<int>& anyons, con
   }
   res.precision = prec;
   res.leakage_ball = ball_str(leak, 20);
-  res.verdict = interval_bounds(res.leakage_ball, prec, &res.leakage_upper, &res.leakage_lower) ? "leaks"
-                                                                                                : "leakage-bounded";
+  res.verdict = interval_bounds(res.leakage_ball, prec, &res.leakage_upper, &res.leakage_lower)
+                    ? Verdict::kLeaks
+                    : Verdict::kLeakageBounded;
   arb_clear(leak);
   acb_mat_clear(img);
   return res;

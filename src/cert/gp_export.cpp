@@ -9,6 +9,34 @@ namespace zb {
 
 namespace {
 
+// THE one way text from inputs (names, paths, labels, specs) enters a GP script: as a GP string literal. Quote
+// and backslash are escaped; every other byte outside printable ASCII (control characters, DEL, non-ASCII) is
+// written as the four visible characters \xHH (an escaped backslash, so GP prints "\xHH" and never sees the
+// byte). Such text never appears in a comment or as code.
+std::string gp_string(const std::string& s) {
+  std::string out = "\"";
+  for (unsigned char ch : s) {
+    if (ch == '"' || ch == '\\') {
+      out += '\\';
+      out += static_cast<char>(ch);
+    } else if (ch < 0x20 || ch >= 0x7f) {
+      out += fmt::format("\\\\x{:02x}", ch);
+    } else {
+      out += static_cast<char>(ch);
+    }
+  }
+  return out + "\"";
+}
+
+std::string gp_strings(const std::vector<std::string>& v) {
+  std::string s = "[";
+  for (size_t i = 0; i < v.size(); ++i) {
+    if (i) s += ", ";
+    s += gp_string(v[i]);
+  }
+  return s + "]";
+}
+
 std::string cyclo_gp(const Cyclo& c) {
   fmpq_poly_t p;
   fmpq_poly_init(p);
@@ -25,12 +53,13 @@ std::string scalar_gp(const Scalar& x) {
   if (x.is_zero()) return "E(0)";
   std::string s;
   for (const auto& [mask, c] : x.terms()) {
-    std::string mono = "(" + cyclo_gp(c) + ")";
+    std::string mono = fmt::format("({})", cyclo_gp(c));
     for (int j = 0; j < 62; ++j)
       if (mask & (RadicalMask(1) << j)) mono += fmt::format("*s{}", j + 1);
-    s += (s.empty() ? "" : " + ") + mono;
+    if (!s.empty()) s += " + ";
+    s += mono;
   }
-  return "E(" + s + ")";
+  return fmt::format("E({})", s);
 }
 
 std::string matrix_gp(const Matrix& m) {
@@ -38,9 +67,12 @@ std::string matrix_gp(const Matrix& m) {
   std::string s = "[";
   for (size_t i = 0; i < m.rows(); ++i) {
     if (i) s += "; ";
-    for (size_t j = 0; j < m.cols(); ++j) s += (j ? ", " : "") + scalar_gp(m(i, j));
+    for (size_t j = 0; j < m.cols(); ++j) {
+      if (j) s += ", ";
+      s += scalar_gp(m(i, j));
+    }
   }
-  return "Mat(" + s + "])";  // Mat(): a 1 x k or 1 x 1 literal would otherwise be a vector
+  return fmt::format("Mat({}])", s);  // Mat(): a 1 x k or 1 x 1 literal would otherwise be a vector
 }
 
 }  // namespace
@@ -51,9 +83,13 @@ std::string export_gp(const CertificateInputs& in, const CertifyResult& r) {
   const int nl = m.label_count();
   std::string g;
   g += "\\\\ Self-contained PARI/GP re-check of a zetabraid certificate (no zetabraid needed).\n";
-  g += fmt::format("\\\\ model: {} (file {}); anyons: {}; total: {}; keep: {}; word length {}.\n", m.name,
-                   in.model_path, label_names(m, in.anyons), m.labels[static_cast<size_t>(in.total)],
-                   in.keep_spec.empty() ? in.keep_kind : in.keep_spec, in.word->size());
+  // what the script is about, as data (string literals; see gp_string), never inside a comment
+  std::vector<std::string> anyon_labels;
+  for (int a : in.anyons) anyon_labels.push_back(m.labels[static_cast<size_t>(a)]);
+  g += fmt::format("MODEL_NAME = {};\nMODEL_FILE = {};\nANYON_LABELS = {};\nTOTAL_LABEL = {};\nKEEP = {};\n",
+                   gp_string(m.name), gp_string(in.model_path), gp_strings(anyon_labels),
+                   gp_string(m.labels[static_cast<size_t>(in.total)]),
+                   gp_string(in.keep_spec.empty() ? in.keep_kind : in.keep_spec));
   g += "\\\\ Exact arithmetic in Q(zeta_N)(sqrt(d_1),...) as nested polmods: z = zeta_N, s_j = sqrt(d_j) > 0.\n";
   g += "\\\\ Generators are rebuilt here from the model's fusion rules, F- and R-symbols (left-associated trees,\n";
   g += "\\\\ sigma_i = F-move, R, inverse F-move; leftmost letter applied first), see docs/certificate-format.md.\n";
@@ -63,7 +99,7 @@ std::string export_gp(const CertificateInputs& in, const CertifyResult& r) {
   g += fmt::format("NC = {};\nPHI = polcyclo(NC, z);\n", f->conductor());
   std::string e = "Mod(p, PHI)";
   for (int j = 1; j <= nr; ++j) e = fmt::format("Mod({}, s{}^2 - ({}))", e, j, cyclo_gp(f->radicand(j - 1)));
-  g += "E(p) = " + e + ";\n";
+  g += fmt::format("E(p) = {};\n", e);
   g += "cj(x) = E(subst(liftall(x), z, z^(NC-1)));  \\\\ complex conjugation (fixes every s_j)\n";
   g += "ct(M) = my(sz = matsize(M)); matrix(sz[2], sz[1], i, j, cj(M[j, i]));  \\\\ conjugate transpose\n";
   g += "num(x) = my(p = liftall(x)); p = subst(p, z, exp(2*Pi*I/NC));";
@@ -116,7 +152,7 @@ gen(an, tot, k) = {
 }
 )GP";
   std::string an = "[";
-  for (size_t i = 0; i < in.anyons.size(); ++i) an += (i ? "," : "") + std::to_string(in.anyons[i] + 1);
+  for (size_t i = 0; i < in.anyons.size(); ++i) an += fmt::format("{}{}", i ? "," : "", in.anyons[i] + 1);
   an += "]";
   g += fmt::format("AN = {};\nTOT = {};\n", an, in.total + 1);
   std::string word = "[";
@@ -138,12 +174,12 @@ gen(an, tot, k) = {
     groups += "]";
   }
   g += fmt::format("GROUPS = {};\n", groups);
-  g += fmt::format("VERDICT = \"{}\";\nUNITARY = {};\n", r.verdict, m.claims_unitary ? 1 : 0);
+  g += fmt::format("VERDICT = {};\nUNITARY = {};\n", gp_string(verdict_name(r.verdict)), m.claims_unitary ? 1 : 0);
   g += fmt::format("LEAK = {};\n", r.leakage ? scalar_gp(*r.leakage) : "0");
   g += fmt::format("HAVELEAK = {};\n", r.leakage ? 1 : 0);
   g += fmt::format("UPPER = {};\n", r.leakage_upper.empty() ? "0" : r.leakage_upper);
   g += fmt::format("LOWER = {};\n", r.leakage_lower.empty() ? "0" : r.leakage_lower);
-  g += fmt::format("METHOD = \"{}\";\n", method_name(r.method));
+  g += fmt::format("METHOD = {};\n", gp_string(method_name(r.method)));
   g += R"GP(ok = 1; why = "";
 fail(s) = if (ok, ok = 0; why = s);
 {

@@ -10,6 +10,7 @@
 #include "zetabraid/braid/checks.hpp"
 #include "zetabraid/braid/invariant.hpp"
 #include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/cert/checker/verify.hpp"
 #include "zetabraid/detail/parallel.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/io/input_file.hpp"
@@ -354,7 +355,7 @@ void add_braid_commands(CLI::App& app, Action& action) {
                      {"upper", r.leakage_upper.empty() ? ojson(nullptr) : ojson(r.leakage_upper)},
                      {"lower", r.leakage_lower.empty() ? ojson(nullptr) : ojson(r.leakage_lower)}};
           if (!r.unitary) leak["note"] = "the leakage value needs a model that claims a unitary gauge";
-          ojson out{{"verdict", r.verdict},
+          ojson out{{"verdict", verdict_name(r.verdict)},
                     {"method", method_name(r.method)},
                     {"dimension", r.dimension},
                     {"kept_dimension", r.kept},
@@ -377,7 +378,7 @@ void add_braid_commands(CLI::App& app, Action& action) {
                      o->total, r.dimension, kind == "charges" ? spec : kind, r.kept);
           fmt::print("word: {} letters; method: {}{}\n", r.letters, method_name(r.method),
                      r.method == Method::kInterval ? fmt::format(" ({} bits)", r.precision) : std::string());
-          fmt::print("verdict: {}\n", r.verdict);
+          fmt::print("verdict: {}\n", verdict_name(r.verdict));
           if (r.leakage)
             fmt::print("leakage ||P_out rho(w) P_in||_F^2 = {}\n  enclosure: {}\n", r.leakage->str(), r.leakage_ball);
           else if (r.method == Method::kExact && !r.unitary)
@@ -399,13 +400,13 @@ void add_braid_commands(CLI::App& app, Action& action) {
           }
           if (r.action) {
             fmt::print("induced action on the kept subspace ({} x {}){}:\n{}", r.action->rows(), r.action->cols(),
-                       r.verdict == "leak-free" ? "" : " (compression P_in rho(w) P_in)",
+                       r.verdict == Verdict::kLeakFree ? "" : " (compression P_in rho(w) P_in)",
                        r.kept <= 8 ? matrix_text(*r.action, "  ") : std::string("  (omitted: use --json)\n"));
           }
           if (!o->out.empty()) fmt::print("certificate written to {}\n", o->out);
           if (!o->gp.empty()) fmt::print("PARI/GP re-check script written to {}\n", o->gp);
         }
-        return r.verdict == "leaks" ? 1 : 0;
+        return r.verdict == Verdict::kLeaks ? 1 : 0;
       };
     });
   }
@@ -414,18 +415,25 @@ void add_braid_commands(CLI::App& app, Action& action) {
   {
     auto* c = app.add_subcommand("verify", "re-check a certificate independently (exit 0 verified, 1 rejected)");
     struct O {
-      std::string cert, model, via = "exact";
+      std::string cert, via = "exact";
+      VerifyOptions opt;
       bool json = false;
     };
     auto o = std::make_shared<O>();
     c->add_option("certificate", o->cert, "certificate file (JSON)")->required();
-    c->add_option("--model", o->model, "model file to use instead of the path stored in the certificate");
+    c->add_option("--model", o->opt.model_override,
+                  "model file to use instead of model.file of the certificate (needed when model.file is absolute "
+                  "or leaves the certificate's folder)");
     c->add_option("--via", o->via, "exact | modular: how an exact certificate's image is re-checked (left-to-right "
                                    "in the number field, or modular images with a norm bound)");
+    c->add_flag("--plain-interval", o->opt.plain_interval,
+                "interval certificates: re-check with a plain left-to-right ball product even when every letter is "
+                "unitary (a slower cross-check of the default error-bound propagation)");
     c->add_flag("--json", o->json, "one JSON object {verified, reason, summary}");
     c->callback([o, &action] {
       action = [o] {
-        VerifyOutcome v = verify_certificate(o->cert, o->model, o->via);
+        o->opt.route = parse_route(o->via);
+        VerifyOutcome v = verify_certificate(o->cert, o->opt);
         if (o->json)
           fmt::print("{}\n", ojson{{"verified", v.verified}, {"reason", v.reason}, {"summary", v.summary}}.dump());
         else if (v.verified)

@@ -8,6 +8,7 @@
 
 #include "commands.hpp"
 #include "zetabraid/error.hpp"
+#include "zetabraid/io/input_file.hpp"
 #include "zetabraid/model/check.hpp"
 #include "zetabraid/model/families.hpp"
 #include "zetabraid/model/invariants.hpp"
@@ -72,7 +73,7 @@ int run_check(const std::string& path, bool as_json, int threads) {
     j["seconds"] = std::round(rep.seconds * 1000.0) / 1000.0;
     fmt::print("{}\n", j.dump());
   } else {
-    fmt::print("model {} ({}): {}\n", m.name.empty() ? path : m.name, path,
+    fmt::print("model {} ({}): {}\n", printable(m.name.empty() ? path : m.name), printable(path),
                rep.ok ? "consistent: every check holds exactly" : "NOT consistent");
     for (const CheckCount& c : rep.checks) {
       if (c.skipped)

@@ -8,6 +8,7 @@
 
 #include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
+#include "zetabraid/io/input_file.hpp"
 #include "zetabraid/model/ribbon.hpp"
 
 namespace zb {
@@ -200,7 +201,7 @@ std::string invariants_json(const Model& m, const Invariants& inv, long digits) 
 }
 
 std::string invariants_text(const Model& m, const Invariants& inv, long digits) {
-  std::string o = fmt::format("model {}: exact invariants (each enclosure is a rigorous ball)\n", m.name);
+  std::string o = fmt::format("model {}: exact invariants (each enclosure is a rigorous ball)\n", printable(m.name));
   auto line = [&](const std::string& what, const Scalar& s) {
     o += fmt::format("  {:<24} {}\n  {:<24}   in {}\n", what, s.str(), "", ball_of(s, digits));
   };

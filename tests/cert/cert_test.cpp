@@ -10,6 +10,7 @@
 #include "../braid/fib_model.hpp"
 #include "support/helpers.hpp"
 #include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/cert/checker/verify.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/field/expression.hpp"
 #include "zetabraid/model/load.hpp"
@@ -55,12 +56,12 @@ TEST_CASE("two-qubit Fibonacci encoding: facts of the trade") {
   CertifyOptions exact;
   exact.method = Method::kExact;
   for (int trial = 0; trial < 6; ++trial) {
-    CHECK(certify(g, six, keep, random_word(rng, {1, 2}, 12), exact).verdict == "leak-free");
-    CHECK(certify(g, six, keep, random_word(rng, {4, 5}, 12), exact).verdict == "leak-free");
-    CHECK(certify(g, six, keep, random_word(rng, {1, 2, 4, 5}, 12), exact).verdict == "leak-free");
+    CHECK(certify(g, six, keep, random_word(rng, {1, 2}, 12), exact).verdict == Verdict::kLeakFree);
+    CHECK(certify(g, six, keep, random_word(rng, {4, 5}, 12), exact).verdict == Verdict::kLeakFree);
+    CHECK(certify(g, six, keep, random_word(rng, {1, 2, 4, 5}, 12), exact).verdict == Verdict::kLeakFree);
   }
   CertifyResult r = certify(g, six, keep, parse_word("s3"), exact);
-  CHECK(r.verdict == "leaks");
+  CHECK(r.verdict == Verdict::kLeaks);
   REQUIRE(r.leakage);
   CHECK(r.leakage->real_sign() > 0);
   // negative control: a leak-free word's leakage is exactly zero and the interval method never says "= 0"
@@ -69,7 +70,7 @@ TEST_CASE("two-qubit Fibonacci encoding: facts of the trade") {
   CertifyOptions iv;
   iv.method = Method::kInterval;
   CertifyResult lfi = certify(g, six, keep, parse_word("s1 s2^-1 s1"), iv);
-  CHECK(lfi.verdict == "leakage-bounded");
+  CHECK(lfi.verdict == Verdict::kLeakageBounded);
   // the action of a leak-free braid on the kept space is unitary
   CHECK((*lf.action * lf.action->adjoint()).is_identity());
   // leakage of a unitary map is the kept norm minus the part staying inside: 0 <= leakage <= kept dimension
@@ -92,8 +93,8 @@ TEST_CASE("interval enclosures contain the exact leakage (fixed seeds)") {
   for (int trial = 0; trial < 5; ++trial) {
     Word w = random_word(rng, {1, 2, 3, 4, 5}, 40);
     CertifyResult a = certify(g, six, keep, w, ex), b = certify(g, six, keep, w, iv);
-    CHECK(a.verdict == "leaks");
-    CHECK(b.verdict == "leaks");
+    CHECK(a.verdict == Verdict::kLeaks);
+    CHECK(b.verdict == Verdict::kLeaks);
     arb_t x, y;
     arb_init(x);
     arb_init(y);
@@ -124,11 +125,11 @@ TEST_CASE("non-coordinate kept spaces: charge of anyons 2-3, and explicit basis 
   CertifyOptions ex;
   ex.method = Method::kExact;
   // s2 exchanges anyons 2 and 3 inside the group: leak-free; s1 and s3 move anyons across it: leaks
-  CHECK(certify(g, four, k, parse_word("s2 s2 s2^-1"), ex).verdict == "leak-free");
-  CHECK(certify(g, four, k, parse_word("s1"), ex).verdict == "leaks");
-  CHECK(certify(g, four, k, parse_word("s3"), ex).verdict == "leaks");
+  CHECK(certify(g, four, k, parse_word("s2 s2 s2^-1"), ex).verdict == Verdict::kLeakFree);
+  CHECK(certify(g, four, k, parse_word("s1"), ex).verdict == Verdict::kLeaks);
+  CHECK(certify(g, four, k, parse_word("s3"), ex).verdict == Verdict::kLeaks);
   // a braid moving the pair as a unit keeps its charge: s1 s2 moves anyon 1 across the pair (2,3)... then back
-  CHECK(certify(g, four, k, parse_word("s1 s2 s2^-1 s1^-1"), ex).verdict == "leak-free");
+  CHECK(certify(g, four, k, parse_word("s1 s2 s2^-1 s1^-1"), ex).verdict == Verdict::kLeakFree);
   // the same kept space given as basis vectors (columns of the projector) gives the same verdicts and leakage
   std::string text;
   for (size_t j = 0; j < k.kept(); ++j) {
@@ -146,11 +147,11 @@ TEST_CASE("non-coordinate kept spaces: charge of anyons 2-3, and explicit basis 
     auto r = zbtest::run(zbtest::cli() + " certify --model " + fib_file() + " --anyons 't t t t' --total t --keep-file " +
                          d + "/v2.txt --word s2 --out " + cert);
     CHECK(r.status == 1);
-    CHECK(zbtest::run(zbtest::cli() + " verify " + cert).status == 0);
+    CHECK(zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + cert).status == 0);
     auto j = nlohmann::ordered_json::parse(slurp(cert));
     j["field"]["radicands"].push_back("3");  // an extra radicand nobody needs is rejected
     spit(cert, j.dump(2) + "\n");
-    CHECK(zbtest::run(zbtest::cli() + " verify " + cert).status == 1);
+    CHECK(zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + cert).status == 1);
   }
   CHECK_THROWS_WITH_AS(subspace_from_text(sp, "1, 0\n", "v.txt"), doctest::Contains("v.txt:1"), InputError);
   CHECK_THROWS_WITH_AS(subspace_from_text(sp, "1, 0, 0\n2, zeta +, 0", "v.txt"),
@@ -172,11 +173,11 @@ TEST_CASE("two qubits inside eight anyons: a non-coordinate kept space") {
   ex.method = Method::kExact;
   std::mt19937_64 rng(99);
   for (int trial = 0; trial < 3; ++trial)
-    CHECK(certify(g, eight, keep, random_word(rng, {1, 2, 4, 5, 7}, 10), ex).verdict == "leak-free");
+    CHECK(certify(g, eight, keep, random_word(rng, {1, 2, 4, 5, 7}, 10), ex).verdict == Verdict::kLeakFree);
   for (const char* w : {"s3", "s6", "s3 s6 s1", "s6^-1 s5"}) {
     CAPTURE(w);
     CertifyResult r = certify(g, eight, keep, parse_word(w), ex);
-    CHECK(r.verdict == "leaks");
+    CHECK(r.verdict == Verdict::kLeaks);
     const Matrix& v = keep.basis;
     Matrix gi = (v.adjoint() * v).inverse();
     Matrix b = v.adjoint() * *r.image;
@@ -259,7 +260,7 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
     std::string text = slurp(a);
     REQUIRE(!text.empty());
     CHECK(text == slurp(b));
-    r = zbtest::run(zbtest::cli() + " verify " + a);
+    r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + a);
     CHECK(r.status == 0);
     CHECK(r.out.rfind("VERIFIED", 0) == 0);
     // PARI/GP, run with no zetabraid at all, agrees
@@ -333,7 +334,7 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
       auto jt = j0;
       edit(jt);
       spit(d + "/t.json", jt.dump(2) + "\n");
-      r = zbtest::run(zbtest::cli() + " verify " + d + "/t.json");
+      r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + d + "/t.json");
       CHECK(r.status == 1);
       CHECK(r.out.rfind("REJECTED", 0) == 0);
     }
@@ -347,10 +348,10 @@ TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
     CHECK(r.status == 0);
     // not JSON at all
     spit(d + "/t.json", text.substr(0, text.size() / 2));
-    CHECK(zbtest::run(zbtest::cli() + " verify " + d + "/t.json").status == 1);
+    CHECK(zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + d + "/t.json").status == 1);
   }
   // unreadable certificate file: an input error
-  CHECK(zbtest::run(zbtest::cli() + " verify " + d + "/does-not-exist.json").status == 2);
+  CHECK(zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + d + "/does-not-exist.json").status == 2);
   std::filesystem::remove_all(d);
 }
 
@@ -372,7 +373,7 @@ TEST_CASE("mixed anyon types: pure braids of Ising sigma and psi anyons, verifie
     REQUIRE(r.status <= 1);
     std::string verdict = nlohmann::json::parse(r.out)["verdict"];
     if (!c.verdict.empty()) CHECK(verdict == c.verdict);
-    CHECK(zbtest::run(zbtest::cli() + " verify " + a).status == 0);
+    CHECK(zbtest::run(zbtest::cli() + " verify --model " + ising + " " + a).status == 0);
     if (zbtest::have_gp()) CHECK(zbtest::gp(slurp(g)).find("zetabraid-gp: verified: " + verdict) != std::string::npos);
   }
   // a word that permutes the anyon types cannot be certified
@@ -392,7 +393,7 @@ TEST_CASE("verify rejects a certificate of a leaking word with an honest-looking
   auto j = nlohmann::ordered_json::parse(slurp(a));
   j["word"]["letters"] = "3";
   spit(a, j.dump(2) + "\n");
-  auto r = zbtest::run(zbtest::cli() + " verify " + a);
+  auto r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + a);
   CHECK(r.status == 1);
   std::filesystem::remove_all(d);
 }

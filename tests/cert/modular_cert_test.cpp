@@ -11,6 +11,7 @@
 
 #include "support/helpers.hpp"
 #include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/field/expression.hpp"
 #include "zetabraid/model/load.hpp"
 
 using namespace zb;
@@ -38,7 +39,7 @@ std::string random_word_text(unsigned seed, size_t len, const std::vector<int>& 
 
 zbtest::RunResult verify_json(const std::string& dir, const ojson& j, const std::string& extra = "") {
   zbtest::spit(dir + "/t.json", j.dump(2) + "\n");
-  return zbtest::run(zbtest::cli() + " verify " + extra + " " + dir + "/t.json");
+  return zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + extra + " " + dir + "/t.json");
 }
 
 }  // namespace
@@ -61,9 +62,9 @@ TEST_CASE("modular verdicts equal the exact engine's on random two-qubit words (
     CAPTURE(seed);
     CHECK(a.verdict == b.verdict);
     REQUIRE(b.modular);
-    CHECK(b.modular->zero == (b.verdict == "leak-free"));
+    CHECK(b.modular->zero == (b.verdict == Verdict::kLeakFree));
     CHECK(!b.leakage);
-    (a.verdict == "leak-free" ? free : leaks)++;
+    (a.verdict == Verdict::kLeakFree ? free : leaks)++;
   }
   CHECK(free > 0);
   CHECK(leaks > 0);
@@ -83,7 +84,7 @@ TEST_CASE("modular certificates: verified, deterministic, every tampered proof r
     CHECK(r.status == (name == "free" ? 0 : 1));
     zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --threads 2 --out " + b));
     CHECK(zbtest::slurp(a) == zbtest::slurp(b));  // same bytes at any thread count
-    r = zbtest::run(zbtest::cli() + " verify " + a);
+    r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + a);
     CHECK(r.status == 0);
     CHECK(r.out.rfind("VERIFIED", 0) == 0);
     // The exact engine agrees.
@@ -141,16 +142,18 @@ TEST_CASE("verify --via modular re-checks an exact certificate's image by modula
   zbtest::spit(d + "/w.txt", random_word_text(9, 150, {1, 2, 3, 4, 5}));
   std::string a = d + "/e.json";
   zbtest::run(certify_cmd("t t t t t t", "1-3:t,4-6:t", d + "/w.txt", "--method exact --out " + a));
-  auto r = zbtest::run(zbtest::cli() + " verify --via modular " + a);
+  auto r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " --via modular " + a);
   CHECK(r.status == 0);
   CHECK(r.out.find("image checked mod") != std::string::npos);
   // Negative control: one image entry changed by 1 is caught by the images alone.
   auto j = ojson::parse(zbtest::slurp(a));
-  j["hints"]["image"][2][1] = j["hints"]["image"][2][1].get<std::string>() + " + 1";
+  // (in canonical form, so that only the value differs)
+  Model fib = load_model(fib_file());
+  j["hints"]["image"][2][1] = parse_expression(j["hints"]["image"][2][1].get<std::string>() + " + 1", fib.field).str();
   r = verify_json(d, j, "--via modular");
   CHECK(r.status == 1);
   CHECK(r.out.find("differs mod") != std::string::npos);
-  r = zbtest::run(zbtest::cli() + " verify --via nonsense " + a, true);
+  r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " --via nonsense " + a, true);
   CHECK(r.status == 2);
 }
 
@@ -185,6 +188,6 @@ TEST_CASE("auto method, model without a unitary gauge, long word: a nonzero imag
     Word w = parse_word(random_word_text(seed, 60, seed % 2 ? std::vector<int>{1, 2, 3, 4, 5} : std::vector<int>{1, 2, 4, 5}));
     CertifyResult a = certify(g, six, keep, w, au), e = certify(g, six, keep, w, ex);
     CHECK(a.verdict == e.verdict);
-    CHECK(a.method == (e.verdict == "leaks" ? Method::kModular : Method::kExact));
+    CHECK(a.method == (e.verdict == Verdict::kLeaks ? Method::kModular : Method::kExact));
   }
 }

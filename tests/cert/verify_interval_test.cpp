@@ -11,6 +11,7 @@
 
 #include "support/helpers.hpp"
 #include "zetabraid/cert/certificate.hpp"
+#include "zetabraid/cert/checker/verify.hpp"
 #include "zetabraid/cert/certify.hpp"
 #include "zetabraid/field/expression.hpp"
 #include "zetabraid/model/load.hpp"
@@ -47,17 +48,11 @@ int certify(const std::string& dir, const std::string& anyons, const std::string
       .status;
 }
 
-struct PlainPath {  // forces the checker's plain ball product while alive
-  PlainPath() { ::setenv("ZETABRAID_VERIFY_PLAIN", "1", 1); }
-  ~PlainPath() { ::unsetenv("ZETABRAID_VERIFY_PLAIN"); }
-};
-
 VerifyOutcome verify(const std::string& cert, bool plain = false) {
-  if (plain) {
-    PlainPath forced;
-    return verify_certificate(cert);
-  }
-  return verify_certificate(cert);
+  VerifyOptions opt;
+  opt.model_override = fib_file();
+  opt.plain_interval = plain;  // the checker's plain ball product instead of the error-bound propagation
+  return verify_certificate(cert, opt);
 }
 
 // the recomputed enclosure printed at the end of a summary: "...; enclosure [m +/- r])"

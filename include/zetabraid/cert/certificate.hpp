@@ -1,5 +1,5 @@
-// Certificates of braid-word verdicts: writing (deterministic JSON, format specified in
-// docs/certificate-format.md) and the independent re-check (`zetabraid verify`).
+// Certificates of braid-word verdicts (the producer's side): writing (deterministic JSON, format specified in
+// docs/certificate-format.md) and the PARI/GP export. The independent re-check is cert/checker/verify.hpp.
 #pragma once
 #include <string>
 
@@ -15,7 +15,7 @@ std::string read_file_bytes(const std::string& path);
 
 /// Everything a certificate speaks about.
 struct CertificateInputs {
-  std::string model_path;        ///< as given (the checker resolves it relative to the cwd, then the cert's folder)
+  std::string model_path;        ///< as given (the checker looks beside the certificate, then in the cwd)
   const Model* model = nullptr;
   std::vector<int> anyons;
   int total = 0;
@@ -29,21 +29,7 @@ struct CertificateInputs {
 /// The certificate text (JSON, 2-space indentation, fixed key order, trailing newline).
 std::string certificate_json(const CertificateInputs& in, const CertifyResult& r);
 
-struct VerifyOutcome {
-  bool verified = false;
-  std::string reason;    ///< why it was rejected (empty when verified)
-  std::string summary;   ///< what was verified, e.g. "leaks, leakage = ... (exact)"
-};
-
-/// Re-checks a certificate through code that shares no product routine with the producer: its own generator
-/// action (from F and R directly), its own straightforward exact product, ball product and modular images, its
-/// own leakage formula. `model_override` replaces the model path stored in the certificate. `via` picks how
-/// an exact certificate's image is re-checked: "exact" (left-to-right in the number field) or "modular"
-/// (images at the checker's own primes with a norm bound); modular certificates are always re-checked by
-/// images. Never throws for bad content (returns a rejection); throws InputError only when the certificate file
-/// itself is unreadable or `via` is unknown.
-VerifyOutcome verify_certificate(const std::string& cert_path, const std::string& model_override = "",
-                                 const std::string& via = "exact");
+// The independent re-check of a certificate: cert/checker/verify.hpp.
 
 /// A self-contained PARI/GP script that rebuilds the generators from the model's F- and R-symbols, multiplies
 /// the word, and checks the claim exactly. Prints "zetabraid-gp: verified" or "zetabraid-gp: REJECTED ...".

@@ -14,6 +14,7 @@
 #include <string>
 
 #include "zetabraid/braid/subspace.hpp"
+#include "zetabraid/cert/verdict.hpp"
 #include "zetabraid/linalg/modular.hpp"
 
 namespace zb {
@@ -36,7 +37,7 @@ struct CertifyOptions {
 };
 
 struct CertifyResult {
-  std::string verdict;             ///< "leak-free", "leaks", "leakage-bounded"
+  Verdict verdict = Verdict::kLeakFree;
   Method method = Method::kExact;  ///< method actually used
   size_t dimension = 0, kept = 0, letters = 0;
   bool unitary = false;

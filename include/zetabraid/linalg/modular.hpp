@@ -4,8 +4,9 @@
 // Phi_N mod p) and for every radicand d_j a root s_j with s_j^2 = d_j(w) (mod p). Then
 //     zeta -> w,  sqrt(d_j) -> s_j
 // is a ring homomorphism from the elements of L whose coefficients have denominators prime to p onto F_p
-// (L = K[y_1..y_m]/(y_j^2 - d_j)). reduce_matrix applies it entrywise; word_product_mod computes the image of a
-// word product with word-size (nmod) arithmetic only, letter by letter, visiting only nonzero generator entries.
+// (L = K[y_1..y_m]/(y_j^2 - d_j)). The prime records, reduce_matrix and the other pieces shared with the
+// independent checker live in linalg/modular_base.hpp; this header is the producer's: word_product_mod computes the
+// image of a word product with word-size (nmod) arithmetic only, letter by letter, visiting only nonzero generator entries.
 //
 // What an image proves, and what it does not:
 //  * image(x) != 0  ==>  x != 0, and image(x) != image(y) ==> x != y (a homomorphism maps 0 to 0): a proof.
@@ -15,59 +16,14 @@
 //    the product of the primes at which the image vanishes exceeds 2H, then x == 0 (this module does not prove
 //    such bounds). Certificates must say which of the two backs a conclusion drawn from images.
 #pragma once
-#include <cstdint>
 #include <string>
 #include <vector>
 
-#include <flint/nmod_vec.h>
-
-#include "zetabraid/linalg/matrix.hpp"
+#include "zetabraid/linalg/modular_base.hpp"
 
 namespace zb {
 
 class IndexedWord;  // linalg/word_product.hpp
-
-struct ModularPrime {
-  ulong p = 0;
-  ulong zeta = 0;            ///< image of zeta_N: a primitive N-th root of unity mod p
-  std::vector<ulong> roots;  ///< roots[j]^2 == image of radicand j (mod p), one per radicand of the field
-};
-
-/// Checks that (p, zeta, roots) define a homomorphism for this field (p prime, p = 1 mod N, zeta of order
-/// exactly N, roots[j]^2 = d_j(zeta), radicand denominators prime to p); InputError saying what fails.
-ModularPrime make_prime(const Field& f, ulong p, ulong zeta, std::vector<ulong> roots);
-
-/// `count` primes p = 1 (mod N), the smallest ones >= 2^(bits-1) (bits <= 63) at which every radicand is a nonzero
-/// square; zeta = the first a^((p-1)/N) (a = 2, 3, ...) of order N, roots = the smaller of the two square roots.
-/// Deterministic.
-std::vector<ModularPrime> choose_primes(const Field& f, size_t count, int bits = 62);
-
-/// A matrix over F_p (row-major).
-class ModularImage {
- public:
-  ModularImage(ulong p, size_t rows, size_t cols);
-  ulong prime() const { return mod_.n; }
-  const nmod_t& modulus() const { return mod_; }
-  size_t rows() const { return r_; }
-  size_t cols() const { return c_; }
-  ulong& operator()(size_t i, size_t j) { return a_[i * c_ + j]; }
-  ulong operator()(size_t i, size_t j) const { return a_[i * c_ + j]; }
-  bool is_zero() const;
-  friend bool operator==(const ModularImage& x, const ModularImage& y);
-  friend bool operator!=(const ModularImage& x, const ModularImage& y) { return !(x == y); }
-  friend ModularImage operator*(const ModularImage& x, const ModularImage& y);  ///< MathError on shape mismatch
-
- private:
-  nmod_t mod_;
-  size_t r_, c_;
-  std::vector<ulong> a_;
-};
-
-/// Image of one number; MathError when a coefficient denominator is divisible by p.
-ulong reduce_scalar(const Scalar& x, const ModularPrime& q);
-ulong reduce_cyclo(const Cyclo& x, const ModularPrime& q);
-/// Entrywise image of a matrix; MathError when a denominator is divisible by p.
-ModularImage reduce_matrix(const Matrix& m, const ModularPrime& q);
 
 /// Image of L_n ... L_1 * start (application order, as word_product_columns).
 ModularImage word_product_mod(const std::vector<const Matrix*>& letters, const Matrix& start, const ModularPrime& q);
@@ -84,19 +40,6 @@ ModularImage word_product_mod(const IndexedWord& word, const Matrix& start, cons
 // every p_i divides [R : xR] = |N_{L/Q}(x)|, hence x = 0 or |N(x)| >= p_1 ... p_r. And |N(x)| is the product of
 // |sigma(x)| over the [L:Q] embeddings sigma (Scalar::ball_at). So: if the images of s*x vanish at primes whose
 // product exceeds a rigorous upper bound of prod_sigma |sigma(s*x)|, then x = 0 (s: an integer with s*x in R).
-
-/// A positive integer s with s*x in R for every entry x of m: lcm over the terms c_S prod_{j in S} sqrt(d_j) of
-/// den(c_S) * prod_{j in S} b_j.
-void order_multiplier(fmpz_t s, const Matrix& m);
-
-/// One embedding of L per complex-conjugate pair (Scalar::ball_at arguments) and its weight: the product of
-/// |sigma(x)| over all embeddings is the product of |ball_at(x, a, signs)|^weight over this list.
-struct Embedding {
-  long a;
-  RadicalMask signs;
-  int weight;
-};
-std::vector<Embedding> embeddings_up_to_conjugation(const Field& f);
 
 struct ModularZeroOptions {
   size_t filter_primes = 2;     ///< primes tried before the norm bound is computed (a nonzero image ends early)
