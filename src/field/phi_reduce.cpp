@@ -14,6 +14,16 @@ PhiReducer::PhiReducer(const fmpz_poly_struct* modulus, long max_length) : n_(fm
   fmpz_poly_init(phi_);
   fmpz_poly_set(phi_, modulus);
   if (max_length < 0) max_length = std::max(n_, 3 * n_ - 2);
+  for (long j = 0; j < n_; ++j) {
+    const fmpz* c = phi_->coeffs + j;
+    if (fmpz_is_zero(c)) continue;
+    if (!fmpz_fits_si(c)) {
+      sparse_ok_ = false;
+      sparse_.clear();
+      break;
+    }
+    sparse_.emplace_back(fmpz_get_si(c), j);
+  }
   if (n_ < 1) return;  // Phi of degree 0 (the constant 1): everything reduces to 0, by fmpz_poly_rem
   // x^k mod Phi_N for k = n .. max_length - 1, by x^(k+1) = x * x^k reduced with the monic Phi_N.
   fmpz_poly_t xk;
@@ -46,6 +56,31 @@ PhiReducer::PhiReducer(const fmpz_poly_struct* modulus, long max_length) : n_(fm
 }
 
 PhiReducer::~PhiReducer() { fmpz_poly_clear(phi_); }
+
+void PhiReducer::reduce_sparse(fmpz_poly_struct* x) const {
+  if (!sparse_ok_ || n_ < 1) {
+    reduce(x);
+    return;
+  }
+  const long d = n_;
+  const long len = x->length;
+  if (len <= d) return;
+  fmpz* co = x->coeffs;
+  for (long i = len - 1; i >= d; --i) {
+    if (fmpz_is_zero(co + i)) continue;
+    // Not fmpz_submul_si: in FLINT 2.9 the _si variants can leave a small result in non-canonical form (then
+    // equal numbers compare unequal); the _ui variants are correct.
+    for (const auto& [cj, j] : sparse_) {
+      if (cj > 0)
+        fmpz_submul_ui(co + (i - d + j), co + i, static_cast<ulong>(cj));
+      else
+        fmpz_addmul_ui(co + (i - d + j), co + i, static_cast<ulong>(-cj));
+    }
+    fmpz_zero(co + i);
+  }
+  _fmpz_poly_set_length(x, d);
+  _fmpz_poly_normalise(x);
+}
 
 void PhiReducer::reduce(fmpz* c, long len) const {
   if (len <= n_) return;

@@ -274,31 +274,11 @@ PolyMatrix flat_product(std::vector<Token> tokens, size_t count, const std::vect
     for (unsigned long e = 0; e < t.exp; ++e) seq.push_back(t.leaf);
   int parts = std::max(1, std::min<int>(opt.threads, static_cast<int>(seq.size() / 64) + 1));
   std::vector<std::vector<PolyMatrix>> blocks(static_cast<size_t>(parts));
-  {
-    std::vector<std::thread> th;
-    std::vector<std::exception_ptr> err(static_cast<size_t>(parts));
-    for (int p = 0; p < parts; ++p) {
-      size_t lo = seq.size() * static_cast<size_t>(p) / static_cast<size_t>(parts);
-      size_t hi = seq.size() * static_cast<size_t>(p + 1) / static_cast<size_t>(parts);
-      auto job = [&, p, lo, hi] {
-        try {
-          small_blocks(&blocks[static_cast<size_t>(p)], seq, lo, hi, kn, leaves, ctx, opt.kernel);
-        } catch (...) {
-          err[static_cast<size_t>(p)] = std::current_exception();
-        }
-      };
-      if (p + 1 < parts)
-        th.emplace_back([job] {
-          job();
-          flint_cleanup();
-        });
-      else
-        job();
-    }
-    for (auto& t : th) t.join();
-    for (auto& e : err)
-      if (e) std::rethrow_exception(e);
-  }
+  parallel_for(static_cast<size_t>(parts), parts, [&](size_t p) {
+    size_t lo = seq.size() * p / static_cast<size_t>(parts);
+    size_t hi = seq.size() * (p + 1) / static_cast<size_t>(parts);
+    small_blocks(&blocks[p], seq, lo, hi, kn, leaves, ctx, opt.kernel);
+  });
   std::vector<PolyMatrix> all;
   for (auto& b : blocks)
     for (auto& m : b) all.push_back(std::move(m));

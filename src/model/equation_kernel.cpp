@@ -98,38 +98,12 @@ void EquationTables::build_integral() {
   }
   const fmpz_poly_struct* phi = F->cyclotomic()->modulus();
   degree = fmpz_poly_degree(phi);
-  for (long i = 0; i < degree; ++i) {
-    const fmpz* co = phi->coeffs + i;
-    if (fmpz_is_zero(co)) continue;
-    if (!fmpz_fits_si(co))
-      integral = false;
-    else
-      modulus.emplace_back(fmpz_get_si(co), i);
-  }
   if (!fmpz_is_one(phi->coeffs + degree)) integral = false;
+  if (integral) reducer = std::make_shared<const PhiReducer>(phi);
   if (!integral) integer_values = ValueTable<FmpzPolyT>{};
 }
 
-void IntegerArith::reduce(fmpz_poly_struct* x) const {
-  const long d = degree_;
-  long len = x->length;
-  if (len <= d) return;
-  fmpz* co = x->coeffs;
-  for (long i = len - 1; i >= d; --i) {
-    if (fmpz_is_zero(co + i)) continue;
-    // Not fmpz_submul_si: in FLINT 2.9 the _si variants can leave a small result in non-canonical form
-    // (then equal numbers compare unequal); the _ui variants are correct.
-    for (const auto& [cj, j] : modulus_) {
-      if (cj > 0)
-        fmpz_submul_ui(co + (i - d + j), co + i, static_cast<ulong>(cj));
-      else if (cj < 0)
-        fmpz_addmul_ui(co + (i - d + j), co + i, static_cast<ulong>(-cj));
-    }
-    fmpz_zero(co + i);
-  }
-  _fmpz_poly_set_length(x, d);
-  _fmpz_poly_normalise(x);
-}
+void IntegerArith::reduce(fmpz_poly_struct* x) const { reducer_->reduce_sparse(x); }
 
 Cyclo IntegerArith::to_cyclo(const Coef& x) const {
   FmpqPolyT q;

@@ -10,11 +10,13 @@
 //     of SU(2)_k, e.g. Phi_48 = x^16 - x^8 + 1). Used when every table value has integral coefficients (after
 //     scaling F by a common denominator) -- the common case, and about twice as fast.
 #pragma once
+#include <memory>
 #include <unordered_map>
 #include <utility>
 #include <vector>
 
 #include "zetabraid/detail/raii.hpp"
+#include "zetabraid/field/phi_reduce.hpp"
 #include "zetabraid/field/scalar.hpp"
 #include "zetabraid/model/model.hpp"
 
@@ -91,9 +93,9 @@ class FieldArith {
 class IntegerArith {
  public:
   using Coef = FmpzPolyT;
-  IntegerArith(CyclotomicFieldPtr k, long degree, std::vector<std::pair<long, long>> modulus,
+  IntegerArith(CyclotomicFieldPtr k, std::shared_ptr<const PhiReducer> reducer,
                const std::vector<FmpzPolyT>* radicands)
-      : k_(std::move(k)), degree_(degree), modulus_(std::move(modulus)), radicands_(radicands) {}
+      : k_(std::move(k)), reducer_(std::move(reducer)), radicands_(radicands) {}
 
   Coef make() const { return FmpzPolyT(); }
   void zero(Coef& x) const { fmpz_poly_zero(x); }
@@ -118,8 +120,7 @@ class IntegerArith {
 
  private:
   CyclotomicFieldPtr k_;
-  long degree_;
-  std::vector<std::pair<long, long>> modulus_;  // (c_j, j) for the nonzero c_j below the leading term
+  std::shared_ptr<const PhiReducer> reducer_;  // the field layer's reduction modulo Phi_N
   const std::vector<FmpzPolyT>* radicands_;      // integral images of the field's radicands
 };
 
@@ -140,7 +141,7 @@ struct EquationTables {
   ValueTable<Cyclo> field_values;
   ValueTable<FmpzPolyT> integer_values;
   long degree = 0;
-  std::vector<std::pair<long, long>> modulus;
+  std::shared_ptr<const PhiReducer> reducer;  ///< reduction modulo Phi_N (when integral)
   std::vector<FmpzPolyT> integer_radicands;
 
   explicit EquationTables(const Model& m);
@@ -166,7 +167,7 @@ struct EquationTables {
 
   FieldArith field_arith() const { return FieldArith(F->cyclotomic(), generic); }
   IntegerArith integer_arith() const {
-    return IntegerArith(F->cyclotomic(), degree, modulus, &integer_radicands);
+    return IntegerArith(F->cyclotomic(), reducer, &integer_radicands);
   }
   const ValueTable<Cyclo>& values(const FieldArith&) const { return field_values; }
   const ValueTable<FmpzPolyT>& values(const IntegerArith&) const { return integer_values; }

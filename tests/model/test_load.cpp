@@ -168,19 +168,19 @@ TEST_CASE("model files are regular files of bounded size: FIFO, directory, /dev/
   REQUIRE(::mkfifo(fifo.c_str(), 0600) == 0);
   auto t0 = std::chrono::steady_clock::now();
   std::string e = load_error(fifo);  // nobody writes to it: a blocking open would hang here
-  CHECK(seconds_since(t0) < 0.5);
+  CHECK(seconds_since(t0) < 10.0);  // no hang (not a speed test)
   CHECK(e.find("not a regular file") != std::string::npos);
   std::remove(fifo.c_str());
   CHECK(load_error(dir).find("is a directory") != std::string::npos);
   t0 = std::chrono::steady_clock::now();
   CHECK(load_error("/dev/zero").find("not a regular file") != std::string::npos);
-  CHECK(seconds_since(t0) < 0.5);
+  CHECK(seconds_since(t0) < 10.0);  // no hang (not a speed test)
   const std::string big = dir + "/big.toml";
   std::ofstream(big) << "labels = [\"1\"]\n";
   std::filesystem::resize_file(big, kMaxModelFileBytes + 1);  // sparse: no disk space used
   t0 = std::chrono::steady_clock::now();
   CHECK(load_error(big).find("larger than the limit") != std::string::npos);
-  CHECK(seconds_since(t0) < 0.5);
+  CHECK(seconds_since(t0) < 10.0);  // no hang (not a speed test)
   std::remove(big.c_str());
   // The CLI maps these to exit 2.
   auto r = zbtest::run(zbtest::cli() + " model check /dev/zero", true);
@@ -223,7 +223,7 @@ TEST_CASE("the bit budget bounds constants: chains of powers and of squarings ex
     } catch (const ResourceError& e) {
       msg = e.what();
     }
-    CHECK(seconds_since(t0) < 0.5);
+    CHECK(seconds_since(t0) < 10.0);  // no hang (not a speed test)
     return msg;
   };
   std::string e = resource_error(head + "a = \"2^100000\"\nb = \"a^100000\"\nc = \"b^100000\"\n[fusion]\n");

@@ -8,6 +8,7 @@
 // matter and no allocation happens.
 #pragma once
 #include <cstdint>
+#include <utility>
 #include <vector>
 
 #include "zetabraid/detail/flint.hpp"
@@ -37,6 +38,10 @@ class PhiReducer {
   /// The same for int64 coefficients: returns false and leaves c unchanged when a partial result could leave
   /// the int64 range (checked in advance from the actual coefficients by a rigorous bound), true when done.
   bool reduce_int64(std::int64_t* c, long len) const;
+  /// p <- p mod Phi_N in place by the recurrence x^n = -sum_j c_j x^j over the nonzero coefficients c_j of Phi_N
+  /// below the leading one, top term first: cost (len - n) * terms(Phi_N), any length, no table. The better
+  /// choice when Phi_N has few terms and inputs are a small multiple of n long (the model checks' kernel).
+  void reduce_sparse(fmpz_poly_struct* p) const;
   /// Rigorous bound on max |(c mod Phi_N)_i| / max |c_k| for inputs of length len <= table_length():
   /// 1 + sum over k in [n, len) of max_i |x^k mod Phi_N|_i.
   double growth(long len) const;
@@ -46,6 +51,8 @@ class PhiReducer {
   fmpz_poly_t phi_;
   std::vector<std::vector<std::int64_t>> table_;  // table_[k - n] = x^k mod Phi_N
   std::vector<std::int64_t> row_max_;             // max_i |table_[k - n][i]|
+  std::vector<std::pair<long, long>> sparse_;      // (c_j, j) for the nonzero c_j, j < n (all fit in a long)
+  bool sparse_ok_ = true;                          // every c_j fits in a long (else reduce_sparse uses reduce)
 };
 
 }  // namespace zb
