@@ -8,6 +8,8 @@
 #include <numeric>
 #include <optional>
 
+#include "zetabraid/detail/raii.hpp"
+
 namespace zb {
 
 namespace {
@@ -440,7 +442,7 @@ class Parser {
     bool odd = n % 2 == 1;
     unsigned long order_ok = odd ? 2 * n : n;  // Q(zeta_N) = Q(zeta_2N) for odd N
     if (fmpz_cmp_ui(q, order_ok) > 0 || order_ok % fmpz_get_ui(q) != 0) {
-      std::string qs = fmpz_get_str(nullptr, 10, q);
+      std::string qs = fmpz_string(q);
       unsigned long qq = fmpz_fits_si(q) ? fmpz_get_ui(q) : 0;
       fmpz_clear(q);
       fmpz_clear(p);

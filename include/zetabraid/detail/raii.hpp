@@ -6,6 +6,7 @@
 //
 // Owners are move-only (no deep copies by accident); moving swaps the contents with a freshly initialised object.
 #pragma once
+#include <string>
 #include <utility>
 
 #include "zetabraid/detail/flint.hpp"
@@ -111,5 +112,14 @@ class FmpzVecT {
   long n_;
   fmpz* v_;
 };
+
+/// Decimal text of an integer (the FLINT string is freed here: never hand fmpz_get_str's result to a std::string
+/// directly).
+inline std::string fmpz_string(const fmpz* x) {
+  char* c = fmpz_get_str(nullptr, 10, x);
+  std::string s(c);
+  flint_free(c);
+  return s;
+}
 
 }  // namespace zb
