@@ -11,7 +11,8 @@ using Action = std::function<int()>;  // returns the exit code
 
 void add_field_commands(CLI::App& app, Action& action);
 void add_model_commands(CLI::App& app, Action& action);
-void add_braid_commands(CLI::App& app, Action& action);
+void add_braid_commands(CLI::App& app, Action& action);    ///< braid basis|subspace|generators|check|invariant
+void add_certify_commands(CLI::App& app, Action& action);  ///< certify, verify
 
 /// Writes text to path atomically (temporary file in the same folder, then rename); "-" means stdout.
 void write_file_atomic(const std::string& path, const std::string& text);

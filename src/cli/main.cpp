@@ -23,6 +23,7 @@ int main(int argc, char** argv) {
   cli::add_field_commands(app, action);
   cli::add_model_commands(app, action);
   cli::add_braid_commands(app, action);
+  cli::add_certify_commands(app, action);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -3,22 +3,18 @@
 #include <unistd.h>
 
 #include <chrono>
-#include <cmath>
-#include <nlohmann/json.hpp>
+#include <optional>
 
 #include "commands.hpp"
+#include "zetabraid/detail/parallel.hpp"
 #include "zetabraid/error.hpp"
-#include "zetabraid/io/input_file.hpp"
-#include "zetabraid/model/check.hpp"
 #include "zetabraid/model/families.hpp"
-#include "zetabraid/model/invariants.hpp"
 #include "zetabraid/model/load.hpp"
+#include "zetabraid/model/render.hpp"
 
 namespace zb::cli {
 
 namespace {
-
-using json = nlohmann::ordered_json;
 
 // Progress on stderr, only on a terminal and only once a stage has run for more than a second.
 struct Progress {
@@ -40,58 +36,15 @@ struct Progress {
   }
 };
 
-int run_check(const std::string& path, bool as_json, int threads) {
-  Model m = load_model(path);
+int run_check(const std::string& path, bool as_json, std::optional<int> threads) {
   CheckOptions opt;
-  opt.threads = threads;
+  opt.threads = requested_thread_count(threads);
+  Model m = load_model(path);
   auto prog = std::make_shared<Progress>();
   opt.progress = [prog](const std::string& s, double f) { (*prog)(s, f); };
   CheckReport rep = check_model(m, opt);
   prog->finish();
-  if (as_json) {
-    json j;
-    j["ok"] = rep.ok;
-    j["model"] = m.name;
-    j["file"] = path;
-    json checks = json::object();
-    for (const CheckCount& c : rep.checks) {
-      json x{{"count", c.count}, {"failed", c.failed}};
-      if (c.skipped) x["skipped"] = true;
-      if (!c.note.empty()) x["note"] = c.note;
-      checks[c.name] = x;
-    }
-    j["checks"] = checks;
-    json fl = json::array();
-    for (const CheckFailure& f : rep.failures) {
-      json x{{"check", f.check}, {"labels", f.where}, {"condition", f.what}};
-      if (!f.residual.empty()) x["residual"] = {{"exact", f.residual}, {"ball", f.residual_ball}};
-      if (f.line) x["line"] = f.line;
-      fl.push_back(x);
-    }
-    j["failures"] = fl;
-    j["exact"] = true;
-    j["seconds"] = std::round(rep.seconds * 1000.0) / 1000.0;
-    fmt::print("{}\n", j.dump());
-  } else {
-    fmt::print("model {} ({}): {}\n", printable(m.name.empty() ? path : m.name), printable(path),
-               rep.ok ? "consistent: every check holds exactly" : "NOT consistent");
-    for (const CheckCount& c : rep.checks) {
-      if (c.skipped)
-        fmt::print("  {:<22} skipped: {}\n", c.name, c.note);
-      else
-        fmt::print("  {:<22} {:>10} checked exactly, {} failed\n", c.name, c.count, c.failed);
-    }
-    for (const CheckFailure& f : rep.failures) {
-      fmt::print("FAILED {}: {}{}\n  {}\n", f.check, f.where, f.line ? fmt::format(" ({}:{})", path, f.line) : "",
-                 f.what);
-      if (!f.residual.empty())
-        fmt::print("  residual = {}\n  residual lies in {}\n", f.residual, f.residual_ball);
-    }
-    fmt::print("  ({:.2f} s)\n", rep.seconds);
-    long listed = static_cast<long>(rep.failures.size()), total = 0;
-    for (const CheckCount& c : rep.checks) total += c.failed;
-    if (total > listed) fmt::print("  ({} failures in all; the first ones of each check are listed)\n", total);
-  }
+  fmt::print("{}", as_json ? check_report_json(m, path, rep) + "\n" : check_report_text(m, path, rep));
   return rep.ok ? kExitOk : kExitClaimFalse;
 }
 
@@ -111,9 +64,12 @@ void add_model_commands(CLI::App& app, Action& action) {
     auto o = std::make_shared<Opts>();
     cmd->add_option("file", o->file, "model file (TOML, see docs/model-format.md)")->required();
     cmd->add_flag("--json", o->json, "one JSON object: ok, checks {name: {count, failed}}, failures");
-    cmd->add_option("--threads", o->threads, "worker threads (default: all cores, at most 8)")
-        ->check(CLI::Range(1, 64));
-    cmd->callback([o, &action] { action = [o] { return run_check(o->file, o->json, o->threads); }; });
+    cmd->add_option("--threads", o->threads, "worker threads (default: all cores, at most 8)");
+    cmd->callback([o, cmd, &action] {
+      action = [o, cmd] {
+        return run_check(o->file, o->json, cmd->count("--threads") ? std::optional<int>(o->threads) : std::nullopt);
+      };
+    });
   }
   {
     auto* cmd = model->add_subcommand("info", "exact invariants: dimensions, twists, S, T, indicators, c mod 8");

@@ -3,23 +3,15 @@
 
 #include <fmt/format.h>
 
-#include <nlohmann/json.hpp>
 #include <numeric>
 
 #include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
-#include "zetabraid/io/input_file.hpp"
 #include "zetabraid/model/ribbon.hpp"
 
 namespace zb {
 
 namespace {
-
-std::string ball_of(const Scalar& s, long digits) {
-  AcbT b;
-  s.ball(b, static_cast<long>(static_cast<double>(digits) * 3.33) + 16);
-  return ball_str(b, digits);
-}
 
 // Writes z = exp(2 pi i j/m) when z^m = 1 is proved and the ball of z pins down j; returns false otherwise.
 bool root_of_unity_index(const Scalar& z, long max_order, long* j_out, long* m_out) {
@@ -146,87 +138,6 @@ Invariants compute_invariants(const Model& m, long) {
   inv.S = std::move(S);
   inv.T = std::move(T);
   return inv;
-}
-
-namespace {
-using ojson = nlohmann::ordered_json;
-ojson num(const Scalar& s, long digits) { return ojson{{"exact", s.str()}, {"ball", ball_of(s, digits)}}; }
-ojson num_int(const FieldPtr& f, long v, long digits) { return num(Scalar(f, v), digits); }
-}  // namespace
-
-std::string invariants_json(const Model& m, const Invariants& inv, long digits) {
-  const FieldPtr& F = m.field;
-  ojson j;
-  j["model"] = m.name;
-  j["labels"] = m.labels;
-  ojson dims = ojson::array();
-  for (const Scalar& d : inv.dims) dims.push_back(num(d, digits));
-  j["dimensions"] = dims;
-  j["global_dimension_squared"] = num(inv.global_dim2, digits);
-  j["global_dimension"] = num(inv.global_dim, digits);
-  ojson fs = ojson::array();
-  for (int v : inv.fs) fs.push_back(num_int(F, v, digits));
-  j["fs_indicators"] = fs;
-  ojson tw = ojson::array();
-  for (const Scalar& t : inv.twists) tw.push_back(num(t, digits));
-  j["twists"] = inv.braided ? tw : ojson(nullptr);
-  auto mat = [&](const std::optional<Matrix>& M) {
-    if (!M) return ojson(nullptr);
-    ojson rows = ojson::array();
-    for (size_t a = 0; a < M->rows(); ++a) {
-      ojson row = ojson::array();
-      for (size_t b = 0; b < M->cols(); ++b) row.push_back(num((*M)(a, b), digits));
-      rows.push_back(row);
-    }
-    return rows;
-  };
-  j["S"] = mat(inv.S);
-  j["T"] = mat(inv.T);
-  if (inv.braided) {
-    j["gauss_sum"] = num(inv.gauss_plus, digits);
-    j["gauss_phase"] = num(inv.gauss_phase, digits);
-  }
-  if (inv.central_charge_known) {
-    std::string exact = inv.c_den == 1 ? std::to_string(inv.c_num) : fmt::format("{}/{}", inv.c_num, inv.c_den);
-    Scalar c(F, Cyclo(F->cyclotomic(), inv.c_num, inv.c_den));
-    j["central_charge_mod8"] = ojson{{"exact", exact}, {"ball", ball_of(c, digits)}};
-  } else {
-    j["central_charge_mod8"] = nullptr;
-  }
-  j["modular"] = inv.modular;
-  j["verlinde"] = ojson{{"ok", inv.verlinde_ok}, {"checked", inv.verlinde_checked}};
-  if (inv.modular) j["fs_twist_formula_ok"] = inv.fs_twist_formula_ok;
-  j["notes"] = inv.notes;
-  return j.dump();
-}
-
-std::string invariants_text(const Model& m, const Invariants& inv, long digits) {
-  std::string o = fmt::format("model {}: exact invariants (each enclosure is a rigorous ball)\n", printable(m.name));
-  auto line = [&](const std::string& what, const Scalar& s) {
-    o += fmt::format("  {:<24} {}\n  {:<24}   in {}\n", what, s.str(), "", ball_of(s, digits));
-  };
-  const int n = m.label_count();
-  for (int a = 0; a < n; ++a) line("d_" + m.labels[a], inv.dims[static_cast<size_t>(a)]);
-  line("D^2", inv.global_dim2);
-  line("D", inv.global_dim);
-  for (int a = 0; a < n; ++a) o += fmt::format("  {:<24} {}\n", "nu_" + m.labels[a] + " (FS indicator)", inv.fs[a]);
-  if (inv.braided) {
-    for (int a = 0; a < n; ++a) line("theta_" + m.labels[a], inv.twists[static_cast<size_t>(a)]);
-    for (int a = 0; a < n; ++a)
-      for (int b = 0; b < n; ++b)
-        line(fmt::format("S[{},{}]", m.labels[a], m.labels[b]), (*inv.S)(static_cast<size_t>(a), static_cast<size_t>(b)));
-    line("p_+ (Gauss sum)", inv.gauss_plus);
-    line("p_+/D", inv.gauss_phase);
-    o += fmt::format("  modular (S invertible)   {}\n", inv.modular ? "yes" : "no");
-    if (inv.central_charge_known)
-      o += fmt::format("  central charge mod 8     {}\n",
-                       inv.c_den == 1 ? std::to_string(inv.c_num) : fmt::format("{}/{}", inv.c_num, inv.c_den));
-    if (inv.modular)
-      o += fmt::format("  Verlinde formula         {} ({} fusion coefficients compared exactly)\n",
-                       inv.verlinde_ok ? "reproduces N" : "does NOT reproduce N", inv.verlinde_checked);
-  }
-  for (const std::string& s : inv.notes) o += "  note: " + s + "\n";
-  return o;
 }
 
 }  // namespace zb

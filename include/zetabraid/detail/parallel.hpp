@@ -1,6 +1,7 @@
 // The one thread policy of zetabraid: how many workers, how work is split, how workers end.
 //
 //  * thread_count(requested): 0 means "all cores, at most kMaxDefaultThreads"; negative is a usage error.
+//    requested_thread_count(optional n): the same rule for a user's --threads option (given: 1..kMaxThreads).
 //  * parallel_for(n, threads, f): calls f(i) for every i in [0, n), items handed out one at a time from a shared
 //    counter; the calling thread works too. Results must be written per item (never depend on which thread ran
 //    an item), so every engine gives identical values at any thread count. The first exception (by item index)
@@ -13,6 +14,8 @@
 #include <cstddef>
 #include <exception>
 #include <mutex>
+#include <optional>
+#include <string>
 #include <thread>
 #include <vector>
 
@@ -35,6 +38,16 @@ inline int thread_count(int requested) {
     return static_cast<int>(std::clamp<unsigned>(h == 0 ? 1u : h, 1u, static_cast<unsigned>(kMaxDefaultThreads)));
   }
   return std::min(requested, kMaxThreads);
+}
+
+/// The thread count of a user's explicit request (a front end's --threads option): absent means thread_count(0)
+/// (all cores, at most kMaxDefaultThreads); given, it must be 1..kMaxThreads, else InputError.
+inline int requested_thread_count(std::optional<int> requested) {
+  if (!requested) return thread_count(0);
+  if (*requested < 1 || *requested > kMaxThreads)
+    throw InputError("--threads must be 1.." + std::to_string(kMaxThreads) + " (omit it for all cores, at most " +
+                     std::to_string(kMaxDefaultThreads) + ")");
+  return thread_count(*requested);
 }
 
 namespace detail {

@@ -36,8 +36,6 @@ struct Invariants {
 /// Computes every invariant exactly. Throws MathError when no consistent choice of quantum dimensions exists.
 Invariants compute_invariants(const Model& m, long digits = 15);
 
-/// Human-readable and JSON renderings (every number as {"exact", "ball"} in JSON).
-std::string invariants_text(const Model& m, const Invariants& inv, long digits = 15);
-std::string invariants_json(const Model& m, const Invariants& inv, long digits = 15);
+// Text and JSON renderings: invariants_text / invariants_json in model/render.hpp.
 
 }  // namespace zb

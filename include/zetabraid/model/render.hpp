@@ -1,0 +1,26 @@
+// Renderings of the model layer's results, for people (text lines) and programs (one JSON object), in one place.
+// Presentation only: the results are computed by model/check.hpp and model/invariants.hpp.
+//
+// Naming used by every layer's render.hpp: <result>_text returns whole lines (each ending in '\n'),
+// <result>_json returns one compact JSON object (keys in a fixed order, no trailing newline).
+#pragma once
+#include <string>
+
+#include "zetabraid/model/check.hpp"
+#include "zetabraid/model/invariants.hpp"
+
+namespace zb {
+
+/// The report of check_model for the model loaded from `path` (the path names the file in text and JSON).
+/// JSON keys: ok, model, file, checks {name: {count, failed[, skipped][, note]}}, failures [{check, labels,
+/// condition[, residual {exact, ball}][, line]}], exact, seconds.
+std::string check_report_text(const Model& m, const std::string& path, const CheckReport& rep);
+std::string check_report_json(const Model& m, const std::string& path, const CheckReport& rep);
+
+/// Invariants; every number as {"exact", "ball"} in JSON, enclosures with `digits` significant digits.
+/// JSON keys: model, labels, dimensions, global_dimension_squared, global_dimension, fs_indicators, twists, S, T,
+/// [gauss_sum, gauss_phase,] central_charge_mod8, modular, verlinde {ok, checked}, [fs_twist_formula_ok,] notes.
+std::string invariants_text(const Model& m, const Invariants& inv, long digits = 15);
+std::string invariants_json(const Model& m, const Invariants& inv, long digits = 15);
+
+}  // namespace zb

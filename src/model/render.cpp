@@ -1,0 +1,147 @@
+// Text and JSON renderings of model check reports and invariants (model/render.hpp).
+#include "zetabraid/model/render.hpp"
+
+#include <fmt/format.h>
+
+#include <cmath>
+
+#include "zetabraid/io/input_file.hpp"
+#include "zetabraid/linalg/render.hpp"
+
+namespace zb {
+
+namespace {
+
+using ojson = nlohmann::ordered_json;
+
+// Invariants print their enclosures at digits * 3.33 + 16 bits (kept for byte-identical output).
+constexpr long kInvariantGuardBits = 16;
+
+ojson num(const Scalar& s, long digits) { return value_json(s, digits, kInvariantGuardBits); }
+ojson num_int(const FieldPtr& f, long v, long digits) { return num(Scalar(f, v), digits); }
+
+}  // namespace
+
+std::string check_report_json(const Model& m, const std::string& path, const CheckReport& rep) {
+  ojson j;
+  j["ok"] = rep.ok;
+  j["model"] = m.name;
+  j["file"] = path;
+  ojson checks = ojson::object();
+  for (const CheckCount& c : rep.checks) {
+    ojson x{{"count", c.count}, {"failed", c.failed}};
+    if (c.skipped) x["skipped"] = true;
+    if (!c.note.empty()) x["note"] = c.note;
+    checks[c.name] = x;
+  }
+  j["checks"] = checks;
+  ojson fl = ojson::array();
+  for (const CheckFailure& f : rep.failures) {
+    ojson x{{"check", f.check}, {"labels", f.where}, {"condition", f.what}};
+    if (!f.residual.empty()) x["residual"] = {{"exact", f.residual}, {"ball", f.residual_ball}};
+    if (f.line) x["line"] = f.line;
+    fl.push_back(x);
+  }
+  j["failures"] = fl;
+  j["exact"] = true;
+  j["seconds"] = std::round(rep.seconds * 1000.0) / 1000.0;
+  return j.dump();
+}
+
+std::string check_report_text(const Model& m, const std::string& path, const CheckReport& rep) {
+  std::string o = fmt::format("model {} ({}): {}\n", printable(m.name.empty() ? path : m.name), printable(path),
+                              rep.ok ? "consistent: every check holds exactly" : "NOT consistent");
+  for (const CheckCount& c : rep.checks) {
+    if (c.skipped)
+      o += fmt::format("  {:<22} skipped: {}\n", c.name, c.note);
+    else
+      o += fmt::format("  {:<22} {:>10} checked exactly, {} failed\n", c.name, c.count, c.failed);
+  }
+  for (const CheckFailure& f : rep.failures) {
+    o += fmt::format("FAILED {}: {}{}\n  {}\n", f.check, f.where, f.line ? fmt::format(" ({}:{})", path, f.line) : "",
+                     f.what);
+    if (!f.residual.empty()) o += fmt::format("  residual = {}\n  residual lies in {}\n", f.residual, f.residual_ball);
+  }
+  o += fmt::format("  ({:.2f} s)\n", rep.seconds);
+  long listed = static_cast<long>(rep.failures.size()), total = 0;
+  for (const CheckCount& c : rep.checks) total += c.failed;
+  if (total > listed) o += fmt::format("  ({} failures in all; the first ones of each check are listed)\n", total);
+  return o;
+}
+
+std::string invariants_json(const Model& m, const Invariants& inv, long digits) {
+  const FieldPtr& F = m.field;
+  ojson j;
+  j["model"] = m.name;
+  j["labels"] = m.labels;
+  ojson dims = ojson::array();
+  for (const Scalar& d : inv.dims) dims.push_back(num(d, digits));
+  j["dimensions"] = dims;
+  j["global_dimension_squared"] = num(inv.global_dim2, digits);
+  j["global_dimension"] = num(inv.global_dim, digits);
+  ojson fs = ojson::array();
+  for (int v : inv.fs) fs.push_back(num_int(F, v, digits));
+  j["fs_indicators"] = fs;
+  ojson tw = ojson::array();
+  for (const Scalar& t : inv.twists) tw.push_back(num(t, digits));
+  j["twists"] = inv.braided ? tw : ojson(nullptr);
+  auto mat = [&](const std::optional<Matrix>& M) {
+    if (!M) return ojson(nullptr);
+    ojson rows = ojson::array();
+    for (size_t a = 0; a < M->rows(); ++a) {
+      ojson row = ojson::array();
+      for (size_t b = 0; b < M->cols(); ++b) row.push_back(num((*M)(a, b), digits));
+      rows.push_back(row);
+    }
+    return rows;
+  };
+  j["S"] = mat(inv.S);
+  j["T"] = mat(inv.T);
+  if (inv.braided) {
+    j["gauss_sum"] = num(inv.gauss_plus, digits);
+    j["gauss_phase"] = num(inv.gauss_phase, digits);
+  }
+  if (inv.central_charge_known) {
+    std::string exact = inv.c_den == 1 ? std::to_string(inv.c_num) : fmt::format("{}/{}", inv.c_num, inv.c_den);
+    Scalar c(F, Cyclo(F->cyclotomic(), inv.c_num, inv.c_den));
+    j["central_charge_mod8"] = ojson{{"exact", exact}, {"ball", ball_text(c, digits, kInvariantGuardBits)}};
+  } else {
+    j["central_charge_mod8"] = nullptr;
+  }
+  j["modular"] = inv.modular;
+  j["verlinde"] = ojson{{"ok", inv.verlinde_ok}, {"checked", inv.verlinde_checked}};
+  if (inv.modular) j["fs_twist_formula_ok"] = inv.fs_twist_formula_ok;
+  j["notes"] = inv.notes;
+  return j.dump();
+}
+
+std::string invariants_text(const Model& m, const Invariants& inv, long digits) {
+  std::string o = fmt::format("model {}: exact invariants (each enclosure is a rigorous ball)\n", printable(m.name));
+  auto line = [&](const std::string& what, const Scalar& s) {
+    o += fmt::format("  {:<24} {}\n  {:<24}   in {}\n", what, s.str(), "", ball_text(s, digits, kInvariantGuardBits));
+  };
+  const int n = m.label_count();
+  for (int a = 0; a < n; ++a) line("d_" + m.labels[a], inv.dims[static_cast<size_t>(a)]);
+  line("D^2", inv.global_dim2);
+  line("D", inv.global_dim);
+  for (int a = 0; a < n; ++a) o += fmt::format("  {:<24} {}\n", "nu_" + m.labels[a] + " (FS indicator)", inv.fs[a]);
+  if (inv.braided) {
+    for (int a = 0; a < n; ++a) line("theta_" + m.labels[a], inv.twists[static_cast<size_t>(a)]);
+    for (int a = 0; a < n; ++a)
+      for (int b = 0; b < n; ++b)
+        line(fmt::format("S[{},{}]", m.labels[a], m.labels[b]), (*inv.S)(static_cast<size_t>(a), static_cast<size_t>(b)));
+    line("p_+ (Gauss sum)", inv.gauss_plus);
+    line("p_+/D", inv.gauss_phase);
+    o += fmt::format("  modular (S invertible)   {}\n", inv.modular ? "yes" : "no");
+    if (inv.central_charge_known)
+      o += fmt::format("  central charge mod 8     {}\n",
+                       inv.c_den == 1 ? std::to_string(inv.c_num) : fmt::format("{}/{}", inv.c_num, inv.c_den));
+    if (inv.modular)
+      o += fmt::format("  Verlinde formula         {} ({} fusion coefficients compared exactly)\n",
+                       inv.verlinde_ok ? "reproduces N" : "does NOT reproduce N", inv.verlinde_checked);
+  }
+  for (const std::string& s : inv.notes) o += "  note: " + s + "\n";
+  return o;
+}
+
+}  // namespace zb
