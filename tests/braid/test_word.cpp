@@ -168,3 +168,36 @@ TEST_CASE("word files: comments, lines, errors naming FILE:LINE:COLUMN, director
   // '#' is a comment only in files.
   CHECK_THROWS_AS(parse_word("s1 # s2"), InputError);
 }
+
+TEST_CASE("braid word syntax") {
+  CHECK(parse_word("s1 s2^-1 s3").canonical() == "1 -2 3");
+  CHECK(parse_word("1 -2 3").canonical() == "1 -2 3");
+  CHECK(parse_word("(s1 s2^-1)^3").canonical() == "1 -2 1 -2 1 -2");
+  CHECK(parse_word("(s1 s2)^-2").canonical() == "-2 -1 -2 -1");
+  CHECK(parse_word("s1^3,s2^(-2)").canonical() == "1 1 1 -2 -2");
+  CHECK(parse_word("s1s2").canonical() == "1 2");
+  CHECK(parse_word("((s1)^2 s2)^0 s3").canonical() == "3");
+  CHECK(parse_word("").size() == 0);
+  CHECK(parse_word("s1 s2 s1^-1").writhe() == 1);
+  CHECK(parse_word("1 2 -3").inverse().canonical() == "3 -2 -1");
+  // errors carry the column
+  auto col = [](const std::string& w) -> std::string {
+    try {
+      parse_word(w);
+    } catch (const InputError& e) {
+      return std::string(e.what()).substr(0, std::string(e.what()).find(':'));
+    }
+    return "no error";
+  };
+  CHECK(col("s1 x2") == "column 4");
+  CHECK(col("s1 (s2") == "column 4");
+  CHECK(col("s1 s2)") == "column 6");
+  CHECK(col("s0") == "column 1");
+  CHECK(col("0") == "column 1");
+  CHECK(col("s1^") == "column 4");
+  CHECK(col("s1 3^2") == "column 5");
+  CHECK_THROWS_AS(parse_word("(s1)^1000000000 (s2)^1000"), ResourceError);
+  Word w = parse_word("s1  s7");
+  CHECK_THROWS_WITH_AS(w.check_range(6), doctest::Contains("column 5: generator s7 out of range"), InputError);
+  CHECK_NOTHROW(w.check_range(8));
+}

@@ -1,4 +1,5 @@
-// Certification of braid words, certificates, the independent checker and the PARI/GP re-check.
+// `zetabraid certify` end to end: certificates (exact, interval, modular), `verify` on them, tampering, determinism
+// across thread counts, and the PARI/GP export (hostile names and labels stay data) re-checked by PARI/GP.
 #include <doctest/doctest.h>
 #include <fmt/format.h>
 
@@ -6,9 +7,11 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 #include <random>
+#include <regex>
 
-#include "../braid/fib_model.hpp"
+#include "support/fib_model.hpp"
 #include "support/helpers.hpp"
+#include "support/random.hpp"
 #include "zetabraid/cert/certificate.hpp"
 #include "zetabraid/cert/checker/verify.hpp"
 #include "zetabraid/error.hpp"
@@ -16,6 +19,8 @@
 #include "zetabraid/model/load.hpp"
 
 using namespace zb;
+using ojson = nlohmann::ordered_json;
+namespace fs = std::filesystem;
 
 namespace {
 
@@ -31,89 +36,35 @@ std::string two_qubit(const std::string& word, const std::string& extra = "") {
          " --anyons 't t t t t t' --total 1 --keep '1-3:t,4-6:t' --word '" + word + "' " + extra;
 }
 
-Word random_word(std::mt19937_64& rng, const std::vector<int>& gens, size_t len) {
-  std::vector<int> wl;
-  std::uniform_int_distribution<size_t> pick(0, gens.size() - 1);
-  std::uniform_int_distribution<int> sign(0, 1);
-  for (size_t i = 0; i < len; ++i) {
-    wl.push_back(gens[pick(rng)] * (sign(rng) ? 1 : -1));
-  }
-  return Word::from_letters(wl);
+std::string certify_cmd(const std::string& anyons, const std::string& keep, const std::string& word_file,
+                        const std::string& extra) {
+  return fmt::format("{} certify --model {} --anyons '{}' --total 1 --keep '{}' --word-file {} {}", zbtest::cli(),
+                     fib_file(), anyons, keep, word_file, extra);
+}
+
+zbtest::RunResult verify_json(const std::string& dir, const ojson& j, const std::string& extra = "") {
+  zbtest::spit(dir + "/t.json", j.dump(2) + "\n");
+  return zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + extra + " " + dir + "/t.json");
+}
+
+// The Fibonacci model with label "t" renamed to `label_toml` (a TOML basic string body) and name `name_toml`.
+std::string hostile_model(const std::string& name_toml, const std::string& label_toml) {
+  std::string s = zbtest::slurp(zbtest::source_dir() + "/models/fibonacci.toml");
+  auto swap = [&](const std::string& from, const std::string& to) {
+    size_t p = s.find(from);
+    REQUIRE(p != std::string::npos);
+    s.replace(p, from.size(), to);
+  };
+  const std::string l = label_toml;
+  swap("name = \"Fibonacci\"", "name = \"" + name_toml + "\"");
+  swap("labels = [\"1\", \"t\"]", "labels = [\"1\", \"" + l + "\"]");
+  swap("\"t t\" = [\"1\", \"t\"]", "\"" + l + " " + l + "\" = [\"1\", \"" + l + "\"]");
+  swap("\"t t t t\" =", "\"" + l + " " + l + " " + l + " " + l + "\" =");
+  swap("\"t t\" = [\"exp", "\"" + l + " " + l + "\" = [\"exp");
+  return s;
 }
 
 }  // namespace
-
-TEST_CASE("two-qubit Fibonacci encoding: facts of the trade") {
-  // Six t anyons of total charge 1, qubits = charges of anyons 1-3 and 4-6 (common practice): braids of anyons
-  // 1-3 (or 4-6) alone never leak; the generator s3 between the groups does.
-  Model m = zbtest::fibonacci_model();
-  std::vector<int> six(6, 1);
-  BraidGenerators g(m, 0);
-  const FusionSpace& sp = g.space(six);
-  Subspace keep = subspace_from_groups(sp, parse_keep(m, "1-3:t,4-6:t", 6));
-  REQUIRE(keep.kept() == 4);
-  std::mt19937_64 rng(20240607);
-  CertifyOptions exact;
-  exact.method = Method::kExact;
-  for (int trial = 0; trial < 6; ++trial) {
-    CHECK(certify(g, six, keep, random_word(rng, {1, 2}, 12), exact).verdict == Verdict::kLeakFree);
-    CHECK(certify(g, six, keep, random_word(rng, {4, 5}, 12), exact).verdict == Verdict::kLeakFree);
-    CHECK(certify(g, six, keep, random_word(rng, {1, 2, 4, 5}, 12), exact).verdict == Verdict::kLeakFree);
-  }
-  CertifyResult r = certify(g, six, keep, parse_word("s3"), exact);
-  CHECK(r.verdict == Verdict::kLeaks);
-  REQUIRE(r.leakage);
-  CHECK(r.leakage->real_sign() > 0);
-  // negative control: a leak-free word's leakage is exactly zero and the interval method never says "= 0"
-  CertifyResult lf = certify(g, six, keep, parse_word("s1 s2^-1 s1"), exact);
-  CHECK(lf.leakage->is_zero());
-  CertifyOptions iv;
-  iv.method = Method::kInterval;
-  CertifyResult lfi = certify(g, six, keep, parse_word("s1 s2^-1 s1"), iv);
-  CHECK(lfi.verdict == Verdict::kLeakageBounded);
-  // the action of a leak-free braid on the kept space is unitary
-  CHECK((*lf.action * lf.action->adjoint()).is_identity());
-  // leakage of a unitary map is the kept norm minus the part staying inside: 0 <= leakage <= kept dimension
-  acb_t b;
-  acb_init(b);
-  r.leakage->ball(b, 64);
-  CHECK(arb_is_positive(acb_realref(b)));
-  acb_clear(b);
-}
-
-TEST_CASE("interval enclosures contain the exact leakage (fixed seeds)") {
-  Model m = zbtest::fibonacci_model();
-  std::vector<int> six(6, 1);
-  BraidGenerators g(m, 0);
-  Subspace keep = subspace_from_groups(g.space(six), parse_keep(m, "1-3:t,4-6:t", 6));
-  std::mt19937_64 rng(7);
-  CertifyOptions ex, iv;
-  ex.method = Method::kExact;
-  iv.method = Method::kInterval;
-  for (int trial = 0; trial < 5; ++trial) {
-    Word w = random_word(rng, {1, 2, 3, 4, 5}, 40);
-    CertifyResult a = certify(g, six, keep, w, ex), b = certify(g, six, keep, w, iv);
-    CHECK(a.verdict == Verdict::kLeaks);
-    CHECK(b.verdict == Verdict::kLeaks);
-    arb_t x, y;
-    arb_init(x);
-    arb_init(y);
-    acb_t e;
-    acb_init(e);
-    a.leakage->ball(e, 256);
-    REQUIRE(arb_set_str(y, b.leakage_ball.c_str(), 256) == 0);
-    CHECK(arb_overlaps(y, acb_realref(e)));
-    REQUIRE(parse_decimal(x, b.leakage_upper, 256));
-    arb_sub(x, x, acb_realref(e), 256);
-    CHECK(arb_is_nonnegative(x));
-    REQUIRE(parse_decimal(x, b.leakage_lower, 256));
-    arb_sub(x, acb_realref(e), x, 256);
-    CHECK(arb_is_nonnegative(x));
-    arb_clear(x);
-    arb_clear(y);
-    acb_clear(e);
-  }
-}
 
 TEST_CASE("non-coordinate kept spaces: charge of anyons 2-3, and explicit basis vectors") {
   Model m = zbtest::fibonacci_model();
@@ -157,52 +108,6 @@ TEST_CASE("non-coordinate kept spaces: charge of anyons 2-3, and explicit basis 
   CHECK_THROWS_WITH_AS(subspace_from_text(sp, "1, 0, 0\n2, zeta +, 0", "v.txt"),
                        doctest::Contains("v.txt:2"), InputError);
   CHECK_THROWS_AS(subspace_from_text(sp, "1, 0, 0\n2, 0, 0", "v.txt"), InputError);
-}
-
-TEST_CASE("two qubits inside eight anyons: a non-coordinate kept space") {
-  // With anyons 7-8 unconstrained the charge of anyons 4-6 is not a tree label, so the kept space is spanned
-  // by projector columns. Braids of 1-3, of 4-6 and of 7-8 keep it; s3 and s6 do not. The leakage is
-  // cross-checked against k - tr(G^-1 B* G^-1 B), B = V* rho V, which holds because rho is unitary.
-  Model m = zbtest::fibonacci_model();
-  std::vector<int> eight(8, 1);
-  BraidGenerators g(m, 0);
-  const FusionSpace& sp = g.space(eight);
-  Subspace keep = subspace_from_groups(sp, parse_keep(m, "1-3:t,4-6:t", 8));
-  REQUIRE_FALSE(keep.coordinate);
-  CertifyOptions ex;
-  ex.method = Method::kExact;
-  std::mt19937_64 rng(99);
-  for (int trial = 0; trial < 3; ++trial)
-    CHECK(certify(g, eight, keep, random_word(rng, {1, 2, 4, 5, 7}, 10), ex).verdict == Verdict::kLeakFree);
-  for (const char* w : {"s3", "s6", "s3 s6 s1", "s6^-1 s5"}) {
-    CAPTURE(w);
-    CertifyResult r = certify(g, eight, keep, parse_word(w), ex);
-    CHECK(r.verdict == Verdict::kLeaks);
-    const Matrix& v = keep.basis;
-    Matrix gi = (v.adjoint() * v).inverse();
-    Matrix b = v.adjoint() * *r.image;
-    Scalar other = Scalar(m.field, static_cast<long>(keep.kept())) - (gi * b.adjoint() * gi * b).trace();
-    CHECK(*r.leakage == other);
-  }
-}
-
-TEST_CASE("decimal bounds round in the stated direction") {
-  arf_t x;
-  arf_init(x);
-  arf_set_d(x, 0.1234567);
-  CHECK(decimal_upper(x, 3) == "1.24e-1");
-  CHECK(decimal_lower(x, 3) == "1.23e-1");
-  arf_set_d(x, 9.9999);
-  CHECK(decimal_upper(x, 3) == "1.00e1");
-  arf_set_si(x, 1000);
-  CHECK(decimal_upper(x, 3) == "1.00e3");
-  arf_clear(x);
-  arb_t y;
-  arb_init(y);
-  CHECK(parse_decimal(y, "2.5e-3", 64));
-  CHECK_FALSE(parse_decimal(y, "2.5e", 64));
-  CHECK_FALSE(parse_decimal(y, "abc", 64));
-  arb_clear(y);
 }
 
 TEST_CASE("CLI: certify, certificates, verify, tampering, GP") {
@@ -396,4 +301,147 @@ TEST_CASE("verify rejects a certificate of a leaking word with an honest-looking
   auto r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + a);
   CHECK(r.status == 1);
   std::filesystem::remove_all(d);
+}
+
+TEST_CASE("modular certificates: verified, deterministic, every tampered proof rejected") {
+  const std::string d = zbtest::tmpdir("zb_modular_cert_test");
+  // A non-coordinate kept space (charge 1 of anyons 2-3 among six t anyons) and a long word of s2, s4, s5 only:
+  // leak-free (those braids never move anyons 2-3 apart from each other or braid another anyon around them,
+  // common practice), with a norm bound that needs many primes. And a leaking word (s1, s3 change that charge).
+  zbtest::spit(d + "/free.txt", zbtest::letters_text(zbtest::random_letters(5, {2, 4, 5}, 3000)));
+  zbtest::spit(d + "/leak.txt", zbtest::letters_text(zbtest::random_letters(6, {1, 2, 3}, 40)));
+  for (const std::string name : {"free", "leak"}) {
+    CAPTURE(name);
+    std::string a = d + "/" + name + ".json", b = d + "/" + name + "2.json";
+    auto r = zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --out " + a));
+    CHECK(r.status == (name == "free" ? 0 : 1));
+    zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --threads 2 --out " + b));
+    CHECK(zbtest::slurp(a) == zbtest::slurp(b));  // same bytes at any thread count
+    r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + a);
+    CHECK(r.status == 0);
+    CHECK(r.out.rfind("VERIFIED", 0) == 0);
+    // The exact engine agrees.
+    r = zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method exact --json"));
+    CHECK(nlohmann::json::parse(r.out)["verdict"] == (name == "free" ? "leak-free" : "leaks"));
+    auto j0 = ojson::parse(zbtest::slurp(a));
+    CHECK(j0["method"]["name"] == "modular");
+    std::vector<std::pair<std::string, std::function<void(ojson&)>>> edits = {
+        {"verdict", [](ojson& x) { x["claim"]["verdict"] = x["claim"]["verdict"] == "leaks" ? "leak-free" : "leaks"; }},
+        {"word", [](ojson& x) { x["word"]["letters"] = x["word"]["letters"].get<std::string>() + " 1 -1 1"; x["word"]["length"] = x["word"]["length"].get<size_t>() + 3; }},
+        {"method", [](ojson& x) { x["method"]["name"] = "exact"; }},
+        {"leakage value", [](ojson& x) { x["claim"]["leakage"]["exact"] = "0"; }},
+    };
+    if (name == "free") {
+      size_t n = j0["proof"]["primes"].size();
+      CHECK(n > 10);
+      // Primes < 2^62: keeping floor((bits - 2)/62) of them leaves a product below the bound (>= 2^(bits - 1)).
+      size_t keep = static_cast<size_t>((j0["proof"]["bound_bits"].get<long>() - 2) / 62);
+      REQUIRE(keep >= 1);
+      edits.push_back({"too few primes", [keep](ojson& x) {
+                         auto& p = x["proof"]["primes"];
+                         while (p.size() > keep) p.erase(p.size() - 1);
+                       }});
+      edits.push_back({"duplicate prime", [](ojson& x) { x["proof"]["primes"][1] = x["proof"]["primes"][0]; }});
+      edits.push_back({"wrong root", [](ojson& x) {
+                         auto& q = x["proof"]["primes"][0];
+                         q["roots"][0] = q["p"].get<ulong>() - q["roots"][0].get<ulong>() + 1;
+                       }});
+      edits.push_back({"not prime", [](ojson& x) { x["proof"]["primes"][0]["p"] = x["proof"]["primes"][0]["p"].get<ulong>() + 10; }});
+      edits.push_back({"no primes", [](ojson& x) { x["proof"]["primes"] = ojson::array(); }});
+    } else {
+      edits.push_back({"value", [](ojson& x) { x["proof"]["value"] = x["proof"]["value"].get<ulong>() + 1; }});
+      edits.push_back({"row", [](ojson& x) { x["proof"]["row"] = 7; }});
+      edits.push_back({"kind", [](ojson& x) { x["proof"]["kind"] = "norm-bound"; }});
+    }
+    for (auto& [what, edit] : edits) {
+      CAPTURE(what);
+      ojson t = j0;
+      edit(t);
+      r = verify_json(d, t);
+      CHECK(r.status == 1);
+      CHECK(r.out.rfind("REJECTED", 0) == 0);
+    }
+    // The PARI/GP re-check of the same claim (an exact product in GP, no zetabraid code).
+    if (zbtest::have_gp()) {
+      std::string gpf = d + "/" + name + ".gp";
+      zbtest::run(certify_cmd("t t t t t t", "2-3:1", d + "/" + name + ".txt", "--method modular --export-gp " + gpf));
+      CHECK(zbtest::run(std::string(ZB_GP) + " -q -f " + gpf).out.find("zetabraid-gp: verified") != std::string::npos);
+    }
+  }
+}
+
+TEST_CASE("certificates are the same bytes at 1 and 2 threads (exact, interval, modular)") {
+  const std::string d = zbtest::tmpdir("zb_modular_cert_test");
+  zbtest::spit(d + "/w10.txt", zbtest::letters_text(zbtest::random_letters(12, {1, 2, 3, 4, 5, 6, 7, 8, 9}, 400)));
+  for (const std::string method : {"exact", "interval", "modular"}) {
+    CAPTURE(method);
+    std::string a = d + "/t1.json", b = d + "/t2.json";
+    zbtest::run(certify_cmd("t t t t t t t t t t", "1-3:t,4-6:t", d + "/w10.txt", "--method " + method + " --threads 1 --out " + a));
+    zbtest::run(certify_cmd("t t t t t t t t t t", "1-3:t,4-6:t", d + "/w10.txt", "--method " + method + " --threads 2 --out " + b));
+    std::string x = zbtest::slurp(a);
+    CHECK(!x.empty());
+    CHECK(x == zbtest::slurp(b));
+  }
+}
+
+TEST_CASE("auto method, model without a unitary gauge, long word: a nonzero image proves the leak, else exact") {
+  // Yang-Lee data (the non-unitary Galois conjugate of Fibonacci): no leakage value, so auto falls back on the
+  // modular filter for long words. Reference verdicts from the exact method.
+  Model m = load_model(zbtest::source_dir() + "/models/yang_lee.toml");
+  int t = m.label_index("t");
+  BraidGenerators g(m, m.label_index("1"));
+  std::vector<int> six(6, t);
+  Subspace keep = subspace_from_groups(g.space(six), parse_keep(m, "1-3:t,4-6:t", 6));
+  CertifyOptions au, ex;
+  au.method = Method::kAuto;
+  au.exact_budget = 10;  // every word below counts as long
+  ex.method = Method::kExact;
+  for (unsigned seed = 1; seed <= 6; ++seed) {
+    CAPTURE(seed);
+    Word w = parse_word(zbtest::letters_text(zbtest::random_letters(seed, seed % 2 ? std::vector<int>{1, 2, 3, 4, 5} : std::vector<int>{1, 2, 4, 5}, 60)));
+    CertifyResult a = certify(g, six, keep, w, au), e = certify(g, six, keep, w, ex);
+    CHECK(a.verdict == e.verdict);
+    CHECK(a.method == (e.verdict == Verdict::kLeaks ? Method::kModular : Method::kExact));
+  }
+}
+
+TEST_CASE("export_gp: names, labels and paths are data in the script, never code") {
+  if (!zbtest::have_gp()) return;
+  const std::string d = zbtest::tmpdir("zb_test_certificate");
+  const std::string mark1 = d + "/pwned_by_path", mark2 = d + "/pwned_by_name", mark3 = d + "/pwned_by_label";
+  // a folder whose name closes a GP comment and runs code, with quotes, backslashes and an ANSI escape
+  const std::string folder = d + "/m\nsystem(\"touch " + mark1 + "\")\n\\\\ \"\\n\x1b[2K";
+  fs::create_directories(folder);
+  const std::string name = "F\\nsystem(\\\"touch " + mark2 + "\\\")\\n\\\\\\\\ \\\"\\u001b[31m";
+  // labels may not contain blanks, but quotes, backslashes, parentheses and escapes are accepted by the loader
+  const std::string label_toml = "t\\\")\\\\\\u001b;system(\\\"touch\\\\x20" + mark3 + "\\\")";
+  zbtest::spit(folder + "/m.toml", hostile_model(name, label_toml));
+  const std::string label = "t\")\\\x1b;system(\"touch\\x20" + mark3 + "\")";  // the label as the loader reads it
+  auto quote = [](const std::string& s) { return "'" + s + "'"; };  // no single quote in these names
+  const std::string an = fmt::format("{0} {0} {0} {0}", label);
+  for (const std::string word : {"s1", "s2"}) {
+    CAPTURE(word);
+    const std::string gpf = d + "/x.gp";
+    auto r = zbtest::run(fmt::format("{} certify --model {} --anyons {} --total 1 --keep {} --word {} --export-gp {}",
+                                     zbtest::cli(), quote(folder + "/m.toml"), quote(an), quote("1-2:" + label), word,
+                                     gpf),
+                         true);
+    CAPTURE(r.out);
+    REQUIRE(r.status <= 1);
+    const std::string script = zbtest::slurp(gpf);
+    // no byte of the inputs reaches the script raw: no control character but our own line breaks
+    size_t raw = 0;
+    for (char ch : script) raw += static_cast<unsigned char>(ch) < 0x20 && ch != '\n';
+    CHECK(raw == 0);
+    CHECK(script.find("\nsystem(") == std::string::npos);
+    const std::string out = zbtest::gp(script);
+    CHECK(out.find("zetabraid-gp: verified: " + std::string(r.status == 0 ? "leak-free" : "leaks")) !=
+          std::string::npos);
+    // the names survive as data: GP reads back the model name and the path's escapes as printable text
+    CHECK(zbtest::gp(script + "\nprint(MODEL_NAME);").find("system(\"touch") != std::string::npos);
+    CHECK_FALSE(fs::exists(mark1));
+    CHECK_FALSE(fs::exists(mark2));
+    CHECK_FALSE(fs::exists(mark3));
+  }
+  fs::remove_all(d);
 }
