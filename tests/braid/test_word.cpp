@@ -8,6 +8,7 @@
 #include <fstream>
 #include <random>
 
+#include "support/random.hpp"
 #include "zetabraid/braid/word.hpp"
 #include "zetabraid/error.hpp"
 
@@ -126,12 +127,8 @@ TEST_CASE("word trees keep the powers as written") {
 TEST_CASE("free reduction equals repeated removal of adjacent inverse pairs (random words, fixed seed)") {
   std::mt19937_64 rng(4711);
   for (int trial = 0; trial < 400; ++trial) {
-    std::vector<int> letters;
     size_t len = rng() % 40;
-    for (size_t i = 0; i < len; ++i) {
-      int k = 1 + static_cast<int>(rng() % 2);  // few generators: many cancellations
-      letters.push_back(rng() % 2 ? k : -k);
-    }
+    std::vector<int> letters = zbtest::random_letters(rng, {1, 2}, len);  // few generators: many cancellations
     Word w = Word::from_letters(letters);
     CHECK(free_reduce(w).expand() == reduce_slowly(letters));
   }
