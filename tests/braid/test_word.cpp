@@ -8,6 +8,7 @@
 #include <fstream>
 #include <random>
 
+#include "support/random.hpp"
 #include "zetabraid/braid/word.hpp"
 #include "zetabraid/error.hpp"
 
@@ -126,12 +127,8 @@ TEST_CASE("word trees keep the powers as written") {
 TEST_CASE("free reduction equals repeated removal of adjacent inverse pairs (random words, fixed seed)") {
   std::mt19937_64 rng(4711);
   for (int trial = 0; trial < 400; ++trial) {
-    std::vector<int> letters;
     size_t len = rng() % 40;
-    for (size_t i = 0; i < len; ++i) {
-      int k = 1 + static_cast<int>(rng() % 2);  // few generators: many cancellations
-      letters.push_back(rng() % 2 ? k : -k);
-    }
+    std::vector<int> letters = zbtest::random_letters(rng, {1, 2}, len);  // few generators: many cancellations
     Word w = Word::from_letters(letters);
     CHECK(free_reduce(w).expand() == reduce_slowly(letters));
   }
@@ -167,4 +164,37 @@ TEST_CASE("word files: comments, lines, errors naming FILE:LINE:COLUMN, director
   CHECK_THROWS_AS(read_word_file("/nonexistent/zb/word.txt"), InputError);
   // '#' is a comment only in files.
   CHECK_THROWS_AS(parse_word("s1 # s2"), InputError);
+}
+
+TEST_CASE("braid word syntax") {
+  CHECK(parse_word("s1 s2^-1 s3").canonical() == "1 -2 3");
+  CHECK(parse_word("1 -2 3").canonical() == "1 -2 3");
+  CHECK(parse_word("(s1 s2^-1)^3").canonical() == "1 -2 1 -2 1 -2");
+  CHECK(parse_word("(s1 s2)^-2").canonical() == "-2 -1 -2 -1");
+  CHECK(parse_word("s1^3,s2^(-2)").canonical() == "1 1 1 -2 -2");
+  CHECK(parse_word("s1s2").canonical() == "1 2");
+  CHECK(parse_word("((s1)^2 s2)^0 s3").canonical() == "3");
+  CHECK(parse_word("").size() == 0);
+  CHECK(parse_word("s1 s2 s1^-1").writhe() == 1);
+  CHECK(parse_word("1 2 -3").inverse().canonical() == "3 -2 -1");
+  // errors carry the column
+  auto col = [](const std::string& w) -> std::string {
+    try {
+      parse_word(w);
+    } catch (const InputError& e) {
+      return std::string(e.what()).substr(0, std::string(e.what()).find(':'));
+    }
+    return "no error";
+  };
+  CHECK(col("s1 x2") == "column 4");
+  CHECK(col("s1 (s2") == "column 4");
+  CHECK(col("s1 s2)") == "column 6");
+  CHECK(col("s0") == "column 1");
+  CHECK(col("0") == "column 1");
+  CHECK(col("s1^") == "column 4");
+  CHECK(col("s1 3^2") == "column 5");
+  CHECK_THROWS_AS(parse_word("(s1)^1000000000 (s2)^1000"), ResourceError);
+  Word w = parse_word("s1  s7");
+  CHECK_THROWS_WITH_AS(w.check_range(6), doctest::Contains("column 5: generator s7 out of range"), InputError);
+  CHECK_NOTHROW(w.check_range(8));
 }

@@ -2,7 +2,7 @@
 // (the flat list) and the naive product, for identical anyons and for labels the powers permute.
 #include <doctest/doctest.h>
 
-#include "fib_model.hpp"
+#include "support/fib_model.hpp"
 #include "zetabraid/braid/word_index.hpp"
 #include "zetabraid/error.hpp"
 

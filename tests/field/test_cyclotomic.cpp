@@ -5,6 +5,7 @@
 #include <sstream>
 
 #include "support/helpers.hpp"
+#include "support/random.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/field/expression.hpp"
 

@@ -1,4 +1,5 @@
-// Limits of the expression parser: the bit budget on exact values and the nesting depth.
+// The exact-expression syntax (field/expression.hpp): roots of unity, malformed input naming the column, and the
+// limits of the parser (the bit budget on exact values and the nesting depth).
 #include <doctest/doctest.h>
 
 #include <fmt/format.h>
@@ -115,34 +116,35 @@ TEST_CASE("nesting: one constant for the check and the message, parentheses and 
             .find(fmt::format("nesting depth {}", kMaxExpressionDepth)) != std::string::npos);
 }
 
-TEST_CASE("field eval CLI: --max-bits, the bit budget exits 3 quickly, bad conductors exit 2") {
-  const std::string z = zbtest::cli();
-  auto t0 = std::chrono::steady_clock::now();
-  auto r = zbtest::run(z + " field eval --conductor 5 \"(2^100000)^100000\"", true);
-  double s = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-  CHECK(r.status == 3);
-  CHECK(r.out.find("limit of 4194304 bits") != std::string::npos);
-  CHECK(s < 10.0);  // no hang (not a speed test)
-  r = zbtest::run(z + " field eval --conductor 5 \"(2^100)^100000 - 2^(100000)*(2^100)^99999\"", true);
-  CHECK(r.status == 3);
-  r = zbtest::run(z + " field eval --max-bits 20000000 --conductor 5 \"(2^100)^100000 - 2^100000*(2^100)^99000\"",
-                  true);
-  CHECK(r.status == 0);
-  CHECK(r.out.rfind("0\n", 0) == 0);
-  r = zbtest::run(z + " field eval --max-bits 100 --conductor 5 \"2^200\"", true);
-  CHECK(r.status == 3);
-  CHECK(r.out.find("limit of 100 bits") != std::string::npos);
-  for (const char* bad : {"-5", "0", "abc", "18446744073709551611", "5x", ""}) {
-    CAPTURE(bad);
-    r = zbtest::run(z + " field eval --conductor \"" + bad + "\" 1", true);
-    CHECK(r.status == 2);
-    CHECK(r.out.find("conductor must be a positive integer") != std::string::npos);
+TEST_CASE("roots of unity: exp(2*pi*i*p/q) is accepted exactly when it lies in Q(zeta_N)") {
+  FieldPtr f20 = Field::make(20);
+  CHECK(parse_expression("exp(2*pi*i*3/20)", f20) == Scalar::zeta_power(f20, 3));
+  CHECK(parse_expression("exp(2*pi*i*3/20)^20", f20).is_one());
+  CHECK(parse_expression("exp(pi*i/2)", f20) == parse_expression("i", f20));
+  CHECK(parse_expression("exp(-2*pi*i/5)", f20) == Scalar::zeta_power(f20, -4));
+  FieldPtr f5 = Field::make(5);
+  // Q(zeta_5) = Q(zeta_10) (common practice), so exp(2*pi*i/10) = -zeta^3 lies in it.
+  CHECK(parse_expression("exp(2*pi*i/10)", f5) == -Scalar::zeta_power(f5, 3));
+  FieldPtr f7 = Field::make(7);
+  CHECK_THROWS_AS(parse_expression("exp(2*pi*i/5)", f7), ExpressionError);
+  CHECK_THROWS_AS(parse_expression("i", f7), ExpressionError);
+}
+
+TEST_CASE("malformed expressions name the column") {
+  FieldPtr f = Field::make(5);
+  struct Bad { const char* text; size_t col; };
+  for (Bad b : {Bad{"zeta +", 7}, Bad{"(1 + 2", 7}, Bad{"2 ** 3", 4}, Bad{"foo", 1}, Bad{"1/0", 2},
+                Bad{"0.5", 2}, Bad{"zeta^x", 6}, Bad{"2^3^4", 4}, Bad{"exp(pi)", 5}, Bad{"1 $ 2", 3}}) {
+    CAPTURE(b.text);
+    try {
+      parse_expression(b.text, f);
+      FAIL("accepted");
+    } catch (const ExpressionError& e) {
+      CHECK(e.column() == b.col);
+    }
   }
-  for (const char* bad : {"-5", "0", "x"}) {
-    CAPTURE(bad);
-    r = zbtest::run(z + " field eval --conductor 5 --max-bits \"" + bad + "\" 1", true);
-    CHECK(r.status == 2);
-  }
-  r = zbtest::run(z + " field eval --conductor 5 --digits -5 1", true);
-  CHECK(r.status == 2);
+  // Deep nesting and oversized input fail cleanly.
+  std::string deep(100000, '(');
+  CHECK_THROWS_AS(parse_expression(deep, f), ExpressionError);
+  CHECK_THROWS_AS(parse_expression("zeta^99999999", f), ExpressionError);
 }

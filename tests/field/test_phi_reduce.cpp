@@ -5,7 +5,6 @@
 #include <random>
 
 #include "zetabraid/field/phi_reduce.hpp"
-#include "zetabraid/linalg/poly_matrix.hpp"
 
 using namespace zb;
 
@@ -92,18 +91,4 @@ TEST_CASE("PhiReducer::reduce_int64 equals fmpz_poly_rem, and refuses when the b
   std::vector<std::int64_t> c = {INT64_MAX - 5, 0, 0, 0, 0, 0, -(INT64_MAX - 5)};
   CHECK_FALSE(red.reduce_int64(c.data(), 7));
   CHECK(red.growth(7) == 2.0);  // 1 + max|coefficients of x^6 mod Phi_7| = 1 + 1
-}
-
-TEST_CASE("PolyContext::reduce is the field layer's reduction (Q(zeta_15))") {
-  PolyContext ctx(Field::make(15));
-  CHECK(ctx.reducer().degree() == 8);
-  fmpz_poly_t p, q;
-  fmpz_poly_init(p);
-  fmpz_poly_init(q);
-  for (long k = 0; k < 22; ++k) fmpz_poly_set_coeff_si(p, k, (k * 7919) % 101 - 50);
-  fmpz_poly_rem(q, p, ctx.modulus());
-  ctx.reduce(p);
-  CHECK(fmpz_poly_equal(p, q));
-  fmpz_poly_clear(p);
-  fmpz_poly_clear(q);
 }

@@ -1,4 +1,5 @@
-// Square decisions with denominators: the non-residue witness must be taken on an integral representative.
+// Squares in Q(zeta_N) (field/square_test.hpp): decisions come with proofs (non-residue witnesses, verified roots);
+// with denominators the non-residue witness must be taken on an integral representative.
 #include <doctest/doctest.h>
 
 #include <fmt/format.h>
@@ -6,6 +7,7 @@
 #include <random>
 
 #include "support/helpers.hpp"
+#include "support/random.hpp"
 #include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/field/expression.hpp"
@@ -14,6 +16,8 @@
 using namespace zb;
 
 namespace {
+
+Scalar eval(const FieldPtr& f, const std::string& s) { return parse_expression(s, f); }
 
 // A random element of Q(zeta_N) whose coefficients have random denominators up to 60 (primes included).
 Cyclo random_fraction_cyclo(const CyclotomicFieldPtr& k, std::mt19937_64& rng) {
@@ -53,18 +57,6 @@ int slow_symbol(const Cyclo& x, const Witness& w) {
 }
 
 }  // namespace
-
-TEST_CASE("regression: 1 - sqrt(3)/2 is the square of (sqrt(3) - 1)/2 in Q(zeta_12), not a new radicand") {
-  // (zeta + zeta^11) = 2 cos(pi/6) = sqrt(3) (common practice), and ((sqrt3 - 1)/2)^2 = (4 - 2 sqrt3)/4.
-  FieldPtr f = Field::make(12);
-  Scalar v = parse_expression("sqrt(1 - (zeta+zeta^11)/2) - ((zeta+zeta^11)-1)/2", f);
-  CHECK(v.is_zero());
-  CHECK(f->radicand_count() == 0);
-  const std::string z = zbtest::cli();
-  auto r = zbtest::run(z + " field eval --conductor 12 \"sqrt(1 - (zeta+zeta^11)/2) - ((zeta+zeta^11)-1)/2\"");
-  CHECK(r.status == 0);
-  CHECK(r.out.rfind("0\n", 0) == 0);
-}
 
 TEST_CASE("legendre_at equals an independent slow evaluation, and is a character of the square class") {
   std::mt19937_64 rng(20261);
@@ -189,4 +181,28 @@ TEST_CASE("square / non-square decisions agree with PARI/GP nfroots over nfinit(
     CHECK(line == (ours[i] ? "1" : "0"));
   }
   CHECK(i == ours.size());
+}
+
+TEST_CASE("square decisions come with proofs: witnesses for non-squares, verified roots for squares") {
+  auto k = CyclotomicField::make(12);
+  WitnessList w(12);
+  FieldPtr f = Field::make(k);
+  // sqrt(3) lies in Q(zeta_12) (common practice: Q(zeta_12) = Q(i, sqrt 3)).
+  SquareAnswer a = decide_square(eval(f, "3").to_base(), w);
+  CHECK(a.is_square);
+  CHECK((*a.root) * (*a.root) == Cyclo(k, 3));
+  SquareAnswer b = decide_square(Cyclo(k, 2), w);
+  CHECK(!b.is_square);
+  REQUIRE(b.witness.has_value());
+  CHECK(legendre_at(Cyclo(k, 2), *b.witness) == -1);
+  CHECK(b.witness->p % 12 == 1);
+  // A square of a random element is always recognised.
+  std::mt19937_64 rng(3);
+  for (int t = 0; t < 5; ++t) {
+    Cyclo x = zbtest::random_cyclo(k, rng);
+    if (x.is_zero()) continue;
+    SquareAnswer s = decide_square(x * x, w);
+    CHECK(s.is_square);
+    CHECK((*s.root) * (*s.root) == x * x);
+  }
 }

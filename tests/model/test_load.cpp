@@ -1,4 +1,5 @@
-// Model files: loading, error messages, writing and re-loading.
+// Model files (model/load.hpp): loading, error messages, writing and re-loading, bounded regular input files,
+// the SHA-256 of the parsed bytes.
 #include <doctest/doctest.h>
 
 #include <fmt/format.h>
@@ -120,73 +121,6 @@ TEST_CASE("written models load back to the same data") {
   }
 }
 
-TEST_CASE("copies of a model keep working F lookups") {
-  Model* m = new Model(make_su2(2));
-  Model c = *m;
-  delete m;
-  REQUIRE(c.f_symbol(1, 1, 1, 1, 0, 0));
-  CHECK(check_model(c).ok);
-}
-
-TEST_CASE("bundled model files load and the CLI rejects bad input with exit 2 and no output file") {
-  std::string dir = zbtest::source_dir();
-  for (const char* f : {"fibonacci", "ising", "su2_k3", "yang_lee", "toric_code", "three_fermion", "z5"})
-    CHECK_NOTHROW(load_model(dir + "/models/" + f + ".toml"));
-  auto r = zbtest::run(zbtest::cli() + " model check /nonexistent/file.toml");
-  CHECK(r.status == 2);
-  std::string bad = "/tmp/zb_model_test_bad.toml";
-  std::ofstream(bad) << "labels = [\"1\", \"t\"]\n[field]\nconductor = 5\n[fusion]\n\"t t\" = [\"1\", \"q\"]\n";
-  r = zbtest::run(zbtest::cli() + " model check " + bad, true);
-  CHECK(r.status == 2);
-  CHECK(r.out.find(bad + ":5") != std::string::npos);
-  std::remove(bad.c_str());
-  std::string out = "/tmp/zb_model_test_out.toml";
-  std::remove(out.c_str());
-  r = zbtest::run(zbtest::cli() + " model make su2 --level 0 --out " + out);
-  CHECK(r.status == 2);
-  CHECK(!std::ifstream(out).good());
-}
-
-namespace {
-double seconds_since(std::chrono::steady_clock::time_point t0) {
-  return std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-}
-std::string load_error(const std::string& path) {
-  try {
-    load_model(path);
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "";
-}
-}  // namespace
-
-TEST_CASE("model files are regular files of bounded size: FIFO, directory, /dev/zero and oversize are refused") {
-  const std::string dir = zbtest::tmpdir("zb_load_test");
-  const std::string fifo = dir + "/model.fifo";
-  std::remove(fifo.c_str());
-  REQUIRE(::mkfifo(fifo.c_str(), 0600) == 0);
-  auto t0 = std::chrono::steady_clock::now();
-  std::string e = load_error(fifo);  // nobody writes to it: a blocking open would hang here
-  CHECK(seconds_since(t0) < 10.0);  // no hang (not a speed test)
-  CHECK(e.find("not a regular file") != std::string::npos);
-  std::remove(fifo.c_str());
-  CHECK(load_error(dir).find("is a directory") != std::string::npos);
-  t0 = std::chrono::steady_clock::now();
-  CHECK(load_error("/dev/zero").find("not a regular file") != std::string::npos);
-  CHECK(seconds_since(t0) < 10.0);  // no hang (not a speed test)
-  const std::string big = dir + "/big.toml";
-  std::ofstream(big) << "labels = [\"1\"]\n";
-  std::filesystem::resize_file(big, kMaxModelFileBytes + 1);  // sparse: no disk space used
-  t0 = std::chrono::steady_clock::now();
-  CHECK(load_error(big).find("larger than the limit") != std::string::npos);
-  CHECK(seconds_since(t0) < 10.0);  // no hang (not a speed test)
-  std::remove(big.c_str());
-  // The CLI maps these to exit 2.
-  auto r = zbtest::run(zbtest::cli() + " model check /dev/zero", true);
-  CHECK(r.status == 2);
-}
-
 TEST_CASE("the model keeps the SHA-256 of exactly the bytes it parsed") {
   // FIPS 180-2, appendix B.1 (from memory): SHA-256("abc").
   CHECK(sha256_hex("abc") == "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
@@ -211,41 +145,4 @@ TEST_CASE("a duplicate TOML key is named with file:line (also quoted keys)") {
   CHECK(e.find("m.toml:7: constants.ab: this key is given twice") != std::string::npos);
   e = error_of("labels = [\"1\"]\n[field]\nconductor = 5\n[fusion]\n[field]\n");
   CHECK(e.find("m.toml:5: [field]: this table is given twice") != std::string::npos);
-}
-
-TEST_CASE("the bit budget bounds constants: chains of powers and of squarings exit 3 quickly") {
-  const std::string head = "labels = [\"1\"]\n[field]\nconductor = 5\n[constants]\n";
-  auto resource_error = [](const std::string& text, const ExpressionLimits& lim = {}) {
-    auto t0 = std::chrono::steady_clock::now();
-    std::string msg;
-    try {
-      parse_model(text, "m.toml", lim);
-    } catch (const ResourceError& e) {
-      msg = e.what();
-    }
-    CHECK(seconds_since(t0) < 10.0);  // no hang (not a speed test)
-    return msg;
-  };
-  std::string e = resource_error(head + "a = \"2^100000\"\nb = \"a^100000\"\nc = \"b^100000\"\n[fusion]\n");
-  CHECK(e.find("m.toml:6: constants.b: column 2: the power ^100000") != std::string::npos);
-  CHECK(e.find(fmt::format("limit of {} bits", kDefaultMaxValueBits)) != std::string::npos);
-  std::string sq = head + "c0 = \"3^60000\"\n";
-  for (int i = 1; i < 30; ++i) sq += fmt::format("c{} = \"c{} * c{}\"\n", i, i - 1, i - 1);
-  e = resource_error(sq + "[fusion]\n");
-  CHECK(e.find("constants.c") != std::string::npos);
-  CHECK(e.find("limit of") != std::string::npos);
-  // A smaller limit through the loading API.
-  ExpressionLimits small;
-  small.max_bits = 5000;
-  e = resource_error(head + "a = \"2^4000\"\nb = \"a * a\"\n[fusion]\n", small);
-  CHECK(e.find("m.toml:6: constants.b") != std::string::npos);
-  CHECK(e.find("limit of 5000 bits") != std::string::npos);
-  CHECK_NOTHROW(parse_model(head + "a = \"2^4000\"\nb = \"a * a\"\n[fusion]\n", "m.toml"));
-  // The CLI exits 3.
-  const std::string path = zbtest::tmpdir("zb_load_test") + "/pow.toml";
-  zbtest::spit(path, head + "a = \"2^100000\"\nb = \"a^100000\"\n[fusion]\n");
-  auto r = zbtest::run(zbtest::cli() + " model check " + path, true);
-  CHECK(r.status == 3);
-  CHECK(r.out.find("limit of") != std::string::npos);
-  std::remove(path.c_str());
 }

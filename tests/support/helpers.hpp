@@ -1,4 +1,4 @@
-// Shared test helpers: running the CLI and PARI/GP, seeded random elements.
+// Shared test helpers: running the CLI and PARI/GP, files and scratch folders (random inputs: support/random.hpp).
 #pragma once
 #include <array>
 #include <filesystem>
@@ -7,11 +7,8 @@
 #include <sstream>
 #include <unistd.h>
 #include <cstdio>
-#include <random>
 #include <string>
 #include <sys/wait.h>
-
-#include "zetabraid/field/scalar.hpp"
 
 namespace zbtest {
 
@@ -63,23 +60,6 @@ inline std::string gp(const std::string& program) {
   std::remove(path.c_str());
   while (!r.out.empty() && (r.out.back() == '\n' || r.out.back() == ' ')) r.out.pop_back();
   return r.out;
-}
-
-/// A random element of Q(zeta_N) with small rational coefficients.
-inline zb::Cyclo random_cyclo(const zb::CyclotomicFieldPtr& k, std::mt19937_64& rng, int bound = 5) {
-  std::uniform_int_distribution<long> c(-bound, bound), d(1, 3);
-  fmpq_poly_t p;
-  fmpq_poly_init(p);
-  fmpq_t q;
-  fmpq_init(q);
-  for (long i = 0; i < k->degree(); ++i) {
-    fmpq_set_si(q, c(rng), static_cast<unsigned long>(d(rng)));
-    fmpq_poly_set_coeff_fmpq(p, i, q);
-  }
-  zb::Cyclo r = zb::Cyclo::from_poly(k, p);
-  fmpq_clear(q);
-  fmpq_poly_clear(p);
-  return r;
 }
 
 }  // namespace zbtest

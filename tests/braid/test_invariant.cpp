@@ -6,7 +6,7 @@
 #include <filesystem>
 
 #include "support/helpers.hpp"
-#include "zetabraid/braid/checks.hpp"
+#include "support/ising_nu3.hpp"
 #include "zetabraid/braid/invariant.hpp"
 #include "zetabraid/field/expression.hpp"
 #include "zetabraid/model/load.hpp"
@@ -71,53 +71,6 @@ TEST_CASE("Jones polynomials of the trefoil and the figure-eight knot from SU(2)
   CHECK(tested >= 3);
 }
 
-TEST_CASE("braid checks on bundled models") {
-  if (!std::filesystem::exists(model_path("ising.toml"))) return;
-  // Ising: sigma anyons, full twist theta_c/theta_sigma^n; four sigmas of total charge 1 span 2 dimensions
-  // (common practice; Nayak et al. 2008)
-  Model m = load_model(model_path("ising.toml"));
-  int s = m.label_index("sigma");
-  for (int n = 2; n <= 6; ++n)
-    for (int c = 0; c < m.label_count(); ++c) {
-      BraidGenerators g(m, c);
-      std::vector<int> a(static_cast<size_t>(n), s);
-      if (g.space(a).dimension() == 0) continue;
-      BraidReport r = check_braid_representation(g, a);
-      CHECK(r.ok());
-      CHECK(r.twist_holds);
-    }
-  BraidGenerators g(m, 0);
-  CHECK(g.space({s, s, s, s}).dimension() == 2);
-  // the Ising image is finite (Clifford-type): on 4 sigmas the algebra is the full 2x2 matrix algebra
-  CHECK(check_braid_representation(g, {s, s, s, s}).algebra_dimension == 4);
-  // twist of sigma: exp(2 pi i/16) (Kitaev 2006, Ising: theta_sigma = e^{i pi/8})
-  CHECK(twist(m, s) == parse_expression("zeta", m.field));
-}
-
-namespace {
-
-// Kitaev, Ann. Phys. 321 (2006) 2, section 10.1, Table 1 (from memory), Ising-type nu = 3: kappa = -1,
-// d_sigma = sqrt 2, theta_sigma = e^{3 pi i/8}, theta_psi = -1, R^{ss}_1 = -e^{-3 pi i/8}, R^{ss}_psi = e^{i pi/8},
-// R^{s psi}_s R^{psi s}_s = (-i^3)^2 = -1. Written here from the table, not read from the model.
-struct Nu3 {
-  FieldPtr f;
-  Scalar e(const std::string& x) const { return parse_expression(x, f); }
-  Scalar d() const { return e("sqrt(2)"); }
-  Scalar theta() const { return e("exp(3*pi*i/8)"); }
-  Scalar r1() const { return e("-exp(-3*pi*i/8)"); }
-  Scalar rpsi() const { return e("exp(pi*i/8)"); }
-};
-
-// The nu = 3 file and the same data without the unitarity claim (a claim must not change any value).
-std::vector<Model> nu3_models() {
-  Model m = load_model(model_path("ising_nu3.toml"));
-  Model nc = m;
-  nc.claims_unitary = false;
-  return {m, nc};
-}
-
-}  // namespace
-
 TEST_CASE("Ising-type nu = 3 (indicator -1): quantum traces and link invariants of 2- and 3-strand closures") {
   // Independent formulas (Reshetikhin-Turaev / Kitaev 2006 Appendix E, common practice):
   //  * on two sigma strands the closure of s1^k has Q = sum_{c = 1, psi} d_c (R^{ss}_c)^k = R_1^k + R_psi^k
@@ -129,9 +82,9 @@ TEST_CASE("Ising-type nu = 3 (indicator -1): quantum traces and link invariants 
   //    (the monodromy R^{ba}_c R^{ab}_c = theta_c/(theta_a theta_b)).
   // With the indicator wrongly taken as +1, d_sigma = 1/[F^{sss}_s]_{11} = -sqrt 2 and every check below that is
   // odd in d_sigma fails.
-  for (const Model& m : nu3_models()) {
+  for (const Model& m : zbtest::nu3_models()) {
     CAPTURE(m.claims_unitary);
-    Nu3 x{m.field};
+    zbtest::Nu3 x{m.field};
     const int s = m.label_index("sigma"), p = m.label_index("psi");
     REQUIRE(s >= 0);
     REQUIRE(p >= 0);
@@ -159,40 +112,6 @@ TEST_CASE("Ising-type nu = 3 (indicator -1): quantum traces and link invariants 
     CHECK(sp.invariant == Scalar(m.field, -1));
     LinkInvariant ps = link_invariant(m, {p, s}, parse_word("s1^2"));
     CHECK(ps.invariant == -x.d());  // divided by d_psi = 1
-  }
-}
-
-TEST_CASE("Ising-type nu = 3: full twists theta_c / theta_sigma^n and the quadratic relation") {
-  // The full twist (s1 ... s_{n-1})^n acts on V(sigma^n; c) as theta_c / theta_sigma^n (common practice;
-  // Kitaev 2006 Appendix E); each s_i has eigenvalues R^{ss}_1, R^{ss}_psi, so (s - R_1)(s - R_psi) = 0.
-  for (const Model& m : nu3_models()) {
-    CAPTURE(m.claims_unitary);
-    Nu3 x{m.field};
-    const int s = m.label_index("sigma");
-    Scalar theta_c[3] = {Scalar(m.field, 1), x.theta(), Scalar(m.field, -1)};
-    int tested = 0, hecke = 0;
-    for (int n = 2; n <= 5; ++n)
-      for (int c = 0; c < 3; ++c) {
-        BraidGenerators g(m, c);
-        std::vector<int> a(static_cast<size_t>(n), s);
-        if (g.space(a).dimension() == 0) continue;
-        CAPTURE(n);
-        CAPTURE(c);
-        BraidReport r = check_braid_representation(g, a);
-        CHECK(r.ok());
-        REQUIRE(r.twist_checked);
-        CHECK(r.twist_holds);
-        CHECK(*r.twist_expected == theta_c[c] / x.theta().pow(n));
-        for (const GeneratorEigen& e : r.eigen) {
-          CHECK(e.hecke_checked == (e.eigenvalues.size() == 2));  // two distinct eigenvalues from dimension 2 on
-          if (e.hecke_checked) CHECK(e.hecke_holds);
-          hecke += e.hecke_checked;
-          for (const Eigenvalue& v : e.eigenvalues) CHECK((v.value == x.r1() || v.value == x.rpsi()));
-        }
-        ++tested;
-      }
-    CHECK(tested == 6);  // n = 2, 4: c = 1, psi; n = 3, 5: c = sigma
-    CHECK(hecke > 0);
   }
 }
 

@@ -1,4 +1,5 @@
-// SU(2)_k from the quantum 6j formula, and the invariants, against closed forms and PARI/GP.
+// Invariants of braided models (model/invariants.hpp) for SU(2)_k, Fibonacci, Ising, Yang-Lee and the toric code,
+// against closed forms and PARI/GP; gauge independence; FS indicators from F against the twist formula.
 #include <doctest/doctest.h>
 
 #include <fmt/format.h>
@@ -20,27 +21,6 @@ Scalar qint(const FieldPtr& f, int k, int n) {
   return (q.pow(n) - qi.pow(n)) / (q - qi);
 }
 }  // namespace
-
-TEST_CASE("SU(2)_k, k = 1..6: every consistency equation holds exactly (both gauges, and the even part)") {
-  for (int k = 1; k <= 6; ++k) {
-    CAPTURE(k);
-    CHECK(check_model(make_su2(k)).ok);
-    CHECK(check_model(make_su2(k, Su2Gauge::kCyclotomic)).ok);
-    if (k % 2 == 1) CHECK(check_model(make_su2(k, Su2Gauge::kUnitary, true)).ok);
-  }
-  // The cyclotomic gauge needs no square roots.
-  Model c = make_su2(5, Su2Gauge::kCyclotomic);
-  for (const auto& [key, v] : c.f_symbols()) CHECK(v.in_base());
-  CHECK(c.field->radicand_count() == 0);
-}
-
-TEST_CASE("negative control: a sign flipped R-symbol of SU(2)_3 breaks the hexagons only") {
-  Model m = make_su2(3);
-  m.set_r_symbol(1, 1, 0, -*m.r_symbol(1, 1, 0));
-  CheckReport r = check_model(m);
-  CHECK(r.find("pentagon")->failed == 0);
-  CHECK(r.find("hexagon")->failed > 0);
-}
 
 TEST_CASE("SU(2)_k invariants match the closed forms") {
   for (int k = 1; k <= 6; ++k) {

@@ -3,22 +3,15 @@
 
 #include <random>
 
-#include "support/helpers.hpp"
+#include "support/random.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/field/expression.hpp"
-#include "zetabraid/field/square_test.hpp"
 
 using namespace zb;
+using zbtest::random_scalar;
 
 namespace {
 Scalar eval(const FieldPtr& f, const std::string& s) { return parse_expression(s, f); }
-
-Scalar random_scalar(const FieldPtr& f, std::mt19937_64& rng) {
-  Scalar x(f);
-  for (RadicalMask m = 0; m < (RadicalMask{1} << f->radicand_count()); ++m)
-    if (rng() % 3 != 0) x += Scalar::monomial(f, zbtest::random_cyclo(f->cyclotomic(), rng, 3), m);
-  return x;
-}
 }  // namespace
 
 TEST_CASE("dependent radicands are reduced, never adjoined (Kummer theory: degree 2^m iff independent mod squares)") {
@@ -46,30 +39,6 @@ TEST_CASE("dependent radicands are reduced, never adjoined (Kummer theory: degre
   // The positive root is always taken.
   CHECK(sinv.real_sign() == 1);
   CHECK(eval(f, "sqrt(6) - sqrt(2)*sqrt(3)").is_zero());
-}
-
-TEST_CASE("square decisions come with proofs: witnesses for non-squares, verified roots for squares") {
-  auto k = CyclotomicField::make(12);
-  WitnessList w(12);
-  FieldPtr f = Field::make(k);
-  // sqrt(3) lies in Q(zeta_12) (common practice: Q(zeta_12) = Q(i, sqrt 3)).
-  SquareAnswer a = decide_square(eval(f, "3").to_base(), w);
-  CHECK(a.is_square);
-  CHECK((*a.root) * (*a.root) == Cyclo(k, 3));
-  SquareAnswer b = decide_square(Cyclo(k, 2), w);
-  CHECK(!b.is_square);
-  REQUIRE(b.witness.has_value());
-  CHECK(legendre_at(Cyclo(k, 2), *b.witness) == -1);
-  CHECK(b.witness->p % 12 == 1);
-  // A square of a random element is always recognised.
-  std::mt19937_64 rng(3);
-  for (int t = 0; t < 5; ++t) {
-    Cyclo x = zbtest::random_cyclo(k, rng);
-    if (x.is_zero()) continue;
-    SquareAnswer s = decide_square(x * x, w);
-    CHECK(s.is_square);
-    CHECK((*s.root) * (*s.root) == x * x);
-  }
 }
 
 TEST_CASE("randomized arithmetic in Q(zeta_5)(sqrt 2, sqrt 3, sqrt phi) (fixed seed)") {

@@ -1,5 +1,6 @@
-// The checker's interval re-check: one error bound per column for unitary letters (fast, rigorous), the plain
-// ball product as the fallback, and their agreement with the exact leakage.
+// `zetabraid verify` on certificates made by `zetabraid certify`: the checker's interval re-check (one error bound
+// per column for unitary letters, the plain ball product as the fallback, their agreement with the exact leakage)
+// and `verify --via modular` re-checking an exact certificate's image by modular images.
 #include <doctest/doctest.h>
 #include <fmt/format.h>
 
@@ -10,6 +11,7 @@
 #include <random>
 
 #include "support/helpers.hpp"
+#include "support/random.hpp"
 #include "zetabraid/cert/certificate.hpp"
 #include "zetabraid/cert/checker/verify.hpp"
 #include "zetabraid/cert/certify.hpp"
@@ -17,6 +19,7 @@
 #include "zetabraid/model/load.hpp"
 
 using namespace zb;
+using ojson = nlohmann::ordered_json;
 
 namespace {
 
@@ -27,14 +30,15 @@ std::string tmpdir() { return zbtest::tmpdir("zb_verify_interval"); }
 using zbtest::slurp;
 using zbtest::spit;
 
-// signed letters drawn from gens with a fixed seed, in the canonical word syntax
-std::string random_letters(unsigned seed, const std::vector<int>& gens, size_t len) {
-  std::mt19937_64 rng(seed);
-  std::uniform_int_distribution<size_t> pick(0, gens.size() - 1);
-  std::uniform_int_distribution<int> sign(0, 1);
-  std::string s;
-  for (size_t i = 0; i < len; ++i) s += (i ? " " : "") + std::to_string(gens[pick(rng)] * (sign(rng) ? 1 : -1));
-  return s;
+std::string certify_cmd(const std::string& anyons, const std::string& keep, const std::string& word_file,
+                        const std::string& extra) {
+  return fmt::format("{} certify --model {} --anyons '{}' --total 1 --keep '{}' --word-file {} {}", zbtest::cli(),
+                     fib_file(), anyons, keep, word_file, extra);
+}
+
+zbtest::RunResult verify_json(const std::string& dir, const ojson& j, const std::string& extra = "") {
+  zbtest::spit(dir + "/t.json", j.dump(2) + "\n");
+  return zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " " + extra + " " + dir + "/t.json");
 }
 
 // certify on the Fibonacci model; the word goes through a file (long words)
@@ -84,7 +88,7 @@ TEST_CASE("interval re-check: a long certificate verifies quickly, tighter true 
   const std::string d = tmpdir(), cert = d + "/long.json";
   // s1 s2 braid anyons 1-3 among themselves and s4 s5 anyons 4-6, so each group keeps its total charge and the
   // two-qubit space is kept exactly (common practice): the true leakage is 0
-  std::string letters = random_letters(2026, {1, 2, 4, 5}, 20000);
+  std::string letters = zbtest::letters_text(zbtest::random_letters(2026, {1, 2, 4, 5}, 20000));
   REQUIRE(certify(d, "t t t t t t", "1", "1-3:t,4-6:t", letters, "interval", cert) == 0);
   VerifyOutcome v = verify(cert);
   CAPTURE(v.reason);
@@ -113,7 +117,7 @@ TEST_CASE("interval re-check rejects an upper bound below the true leakage of a 
   if (!std::filesystem::exists(fib_file())) return;
   const std::string d = tmpdir(), cert = d + "/leak.json";
   // s3 braids anyon 3 out of group 1-3: a random word with s3 leaks (the exact method agrees on short ones)
-  std::string letters = random_letters(7, {1, 2, 3, 4, 5}, 3000);
+  std::string letters = zbtest::letters_text(zbtest::random_letters(7, {1, 2, 3, 4, 5}, 3000));
   REQUIRE(certify(d, "t t t t t t", "1", "1-3:t,4-6:t", letters, "interval", cert) == 1);
   auto j = nlohmann::json::parse(slurp(cert));
   REQUIRE(j["claim"]["verdict"] == "leaks");
@@ -158,7 +162,7 @@ TEST_CASE("interval re-check: error-bound and plain paths agree on short words a
   // a coordinate kept space (two qubits in six anyons) and a non-coordinate one (charge of anyons 2-3)
   for (const Space& s : {Space{"t t t t t t", "1", "1-3:t,4-6:t", {1, 2, 3, 4, 5}}, Space{"t t t t", "t", "2-3:1", {1, 2, 3}}})
     for (unsigned seed = 1; seed <= 4; ++seed) {
-      std::string letters = random_letters(seed, s.gens, 6 * seed);
+      std::string letters = zbtest::letters_text(zbtest::random_letters(seed, s.gens, 6 * seed));
       CAPTURE(s.keep);
       CAPTURE(letters);
       std::string ex = d + "/e.json", iv = d + "/i.json";
@@ -191,4 +195,24 @@ TEST_CASE("interval re-check: error-bound and plain paths agree on short words a
       acb_clear(e);
     }
   std::filesystem::remove_all(d);
+}
+
+TEST_CASE("verify --via modular re-checks an exact certificate's image by modular images") {
+  const std::string d = zbtest::tmpdir("zb_modular_cert_test");
+  zbtest::spit(d + "/w.txt", zbtest::letters_text(zbtest::random_letters(9, {1, 2, 3, 4, 5}, 150)));
+  std::string a = d + "/e.json";
+  zbtest::run(certify_cmd("t t t t t t", "1-3:t,4-6:t", d + "/w.txt", "--method exact --out " + a));
+  auto r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " --via modular " + a);
+  CHECK(r.status == 0);
+  CHECK(r.out.find("image checked mod") != std::string::npos);
+  // Negative control: one image entry changed by 1 is caught by the images alone.
+  auto j = ojson::parse(zbtest::slurp(a));
+  // (in canonical form, so that only the value differs)
+  Model fib = load_model(fib_file());
+  j["hints"]["image"][2][1] = parse_expression(j["hints"]["image"][2][1].get<std::string>() + " + 1", fib.field).str();
+  r = verify_json(d, j, "--via modular");
+  CHECK(r.status == 1);
+  CHECK(r.out.find("differs mod") != std::string::npos);
+  r = zbtest::run(zbtest::cli() + " verify --model " + fib_file() + " --via nonsense " + a, true);
+  CHECK(r.status == 2);
 }
