@@ -129,8 +129,8 @@ CompareDiff invariant_diff(int level, const Side& A, const Side& B, const std::v
       const Scalar& v = level == kDims ? s.rd->dims[static_cast<size_t>(x)] : s.rd->twists[static_cast<size_t>(x)];
       return v.str();
     };
-    d.detail = fmt::format("{}_{} in A differs from {}_{} in B (for every relabelling that keeps the {})", what,
-                           L(A.m, a), what, L(B.m, b), level_name(level - 1));
+    d.detail = fmt::format("no relabelling that keeps the {} keeps the {}; e.g. {}_{} in A vs {}_{} in B",
+                           level_name(level - 1), level_name(level), what, L(A.m, a), what, L(B.m, b));
     d.value_a = val(A, a), d.value_b = val(B, b);
     return d;
   }
