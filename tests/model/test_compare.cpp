@@ -160,3 +160,28 @@ TEST_CASE("model compare on the command line: exit codes, JSON keys, --out") {
   CHECK(j["differs"]["invariant"] == "dimensions");
   CHECK(zbtest::run(zbtest::cli() + " model compare " + fib + " " + dir + "/missing.toml").status == 2);
 }
+
+TEST_CASE("a gauge that needs a root outside the field: still equivalent, the root is named") {
+  // SU(2)_5 with seed 3: the echelon pivots include a 2, and with the free factors set to 1 the value under it is
+  // not a positive real of the base field; over C the square root exists, so the models are equivalent.
+  Model m = bundled("su2_k5");
+  Model g = apply_gauge(m, random_gauge(m, 3));
+  CompareResult r = compare_models(m, g);
+  CHECK(r.verdict == CompareVerdict::kEquivalent);
+  if (!r.gauge_explicit) CHECK(r.gauge_note.find("square root") != std::string::npos);
+}
+
+TEST_CASE("negative control: an F entry set to zero is a zero-pattern difference") {
+  Model m = bundled("ising");
+  Model g = apply_gauge(m, random_gauge(m, 5));
+  // Rebuild g without one F entry of the 2x2 block F^{sigma sigma sigma}_sigma (a zero where A has 1/sqrt 2).
+  Model h = g;
+  h.clear_symbols();
+  for (const auto& [k, v] : g.f_symbols())
+    if (!(k == std::array<int, 6>{1, 1, 1, 1, 0, 0})) h.set_f_symbol(k[0], k[1], k[2], k[3], k[4], k[5], v);
+  for (const auto& [k, v] : g.r_symbols()) h.set_r_symbol(k[0], k[1], k[2], v);
+  CompareResult r = compare_models(m, h);
+  CHECK(r.verdict == CompareVerdict::kNotEquivalent);
+  CHECK(r.differs.invariant == "zero pattern");
+  CHECK(r.differs.value_b == "0");
+}
