@@ -1,4 +1,4 @@
-// `zetabraid model check|info|make`: front end only; the mathematics lives in src/model/.
+// `zetabraid model check|info|compare|transform|make`: front end only; the mathematics lives in src/model/.
 #include <fmt/format.h>
 #include <unistd.h>
 
@@ -11,6 +11,7 @@
 #include "zetabraid/model/families.hpp"
 #include "zetabraid/model/load.hpp"
 #include "zetabraid/model/render.hpp"
+#include "zetabraid/model/transform.hpp"
 
 namespace zb::cli {
 
@@ -46,6 +47,47 @@ int run_check(const std::string& path, bool as_json, std::optional<int> threads)
   prog->finish();
   fmt::print("{}", as_json ? check_report_json(m, path, rep) + "\n" : check_report_text(m, path, rep));
   return rep.ok ? kExitOk : kExitClaimFalse;
+}
+
+int run_compare(const std::string& pa, const std::string& pb, bool as_json, bool mirror, const std::string& out) {
+  Model a = load_model(pa), b = load_model(pb);
+  CompareOptions opt;
+  opt.try_mirror = mirror;
+  CompareResult r = compare_models(a, b, opt);
+  std::string json = compare_json(r, pa, pb);
+  if (!out.empty()) write_file_atomic(out, json + "\n");
+  fmt::print("{}", as_json ? json + "\n" : compare_text(r, pa, pb));
+  return r.verdict == CompareVerdict::kNotEquivalent ? kExitClaimFalse : kExitOk;
+}
+
+struct TransformOpts {
+  std::string file, out = "-", relabel;
+  std::uint64_t seed = 0;
+  bool mirror = false;
+};
+
+int run_transform(const TransformOpts& o, bool gauge) {
+  Model m = load_model(o.file);
+  std::string what;
+  if (gauge) {
+    m = apply_gauge(m, random_gauge(m, o.seed));
+    what += fmt::format(" --gauge-seed {}", o.seed);
+  }
+  if (!o.relabel.empty()) {
+    std::vector<int> perm;
+    std::vector<std::string> names;
+    parse_relabeling(m, o.relabel, &perm, &names);
+    m = relabel_model(m, perm, names);
+    what += fmt::format(" --relabel \"{}\"", o.relabel);
+  }
+  if (o.mirror) {
+    m = mirror_model(m);
+    what += " --mirror";
+  }
+  if (what.empty()) throw InputError("model transform: give --gauge-seed, --relabel or --mirror");
+  m.source = fmt::format("zetabraid model transform{} of {} ({})", what, o.file, m.source);
+  write_file_atomic(o.out, model_to_toml(m));
+  return kExitOk;
 }
 
 }  // namespace
@@ -89,6 +131,36 @@ void add_model_commands(CLI::App& app, Action& action) {
         fmt::print("{}", o->json ? invariants_json(m, inv, o->digits) + "\n" : invariants_text(m, inv, o->digits));
         return inv.verlinde_ok ? kExitOk : kExitClaimFalse;
       };
+    });
+  }
+  {
+    auto* cmd = model->add_subcommand(
+        "compare", "decide exactly whether two model files are the same up to gauge and relabelling (or mirror)");
+    struct Opts {
+      std::string a, b, out;
+      bool json = false, no_mirror = false;
+    };
+    auto o = std::make_shared<Opts>();
+    cmd->add_option("a", o->a, "model file A")->required();
+    cmd->add_option("b", o->b, "model file B")->required();
+    cmd->add_flag("--json", o->json, "one JSON object: verdict, relabeling, gauge, differs");
+    cmd->add_option("--out", o->out, "also write the JSON result to this file");
+    cmd->add_flag("--no-mirror", o->no_mirror, "do not compare B with the mirror (complex conjugate) of A");
+    cmd->callback([o, &action] {
+      action = [o] { return run_compare(o->a, o->b, o->json, !o->no_mirror, o->out); };
+    });
+  }
+  {
+    auto* cmd = model->add_subcommand("transform", "write a gauge-transformed, relabelled or mirrored copy of a model");
+    auto o = std::make_shared<TransformOpts>();
+    cmd->add_option("file", o->file, "model file")->required();
+    cmd->add_option("--gauge-seed", o->seed, "apply a random exact gauge (small rationals times roots of unity)");
+    cmd->add_option("--relabel", o->relabel, "\"a:b,c:d\": label a is called b afterwards");
+    cmd->add_flag("--mirror", o->mirror, "complex-conjugate every F and R");
+    cmd->add_option("--out,-o", o->out, "output file (default: standard output)");
+    cmd->callback([o, cmd, &action] {
+      bool gauge = cmd->count("--gauge-seed") > 0;
+      action = [o, gauge] { return run_transform(*o, gauge); };
     });
   }
   {

@@ -144,4 +144,61 @@ std::string invariants_text(const Model& m, const Invariants& inv, long digits) 
   return o;
 }
 
+std::string compare_json(const CompareResult& r, const std::string& path_a, const std::string& path_b) {
+  ojson j;
+  j["verdict"] = verdict_name(r.verdict);
+  j["file_a"] = path_a;
+  j["file_b"] = path_b;
+  if (r.verdict != CompareVerdict::kNotEquivalent) {
+    ojson rl = ojson::object();
+    for (size_t a = 0; a < r.relabeling.size(); ++a)
+      rl[r.labels_a[a]] = r.labels_b[static_cast<size_t>(r.relabeling[a])];
+    j["relabeling"] = rl;
+    ojson g = ojson::array();
+    for (const GaugeValue& v : r.gauge) g.push_back({{"vertex", v.vertex}, {"u", v.value}});
+    if (r.gauge_explicit) j["gauge"] = g;
+    if (!r.gauge_note.empty()) j["gauge_note"] = r.gauge_note;
+  } else {
+    ojson d{{"invariant", r.differs.invariant}, {"detail", r.differs.detail}, {"a", r.differs.value_a},
+            {"b", r.differs.value_b}};
+    if (!r.differs.loop.empty()) {
+      ojson l = ojson::array();
+      for (const LoopFactor& f : r.differs.loop) l.push_back({{"entry", f.entry}, {"exponent", f.exponent}, {"ratio", f.ratio}});
+      d["loop"] = l;
+    }
+    j["differs"] = d;
+  }
+  j["relabelings_tried"] = r.relabelings_tried;
+  j["notes"] = r.notes;
+  j["exact"] = true;
+  return j.dump();
+}
+
+std::string compare_text(const CompareResult& r, const std::string& path_a, const std::string& path_b) {
+  std::string o = fmt::format("A = {}, B = {}: {}\n", printable(path_a), printable(path_b), verdict_name(r.verdict));
+  if (r.verdict == CompareVerdict::kEquivalentToMirror)
+    o += "  B is gauge equivalent to the complex conjugate (mirror) of A, not to A\n";
+  if (r.verdict != CompareVerdict::kNotEquivalent) {
+    std::string rl;
+    for (size_t a = 0; a < r.relabeling.size(); ++a)
+      rl += fmt::format("{}{} -> {}", a ? ", " : "", printable(r.labels_a[a]),
+                        printable(r.labels_b[static_cast<size_t>(r.relabeling[a])]));
+    o += "  relabelling (A -> B): " + rl + "\n";
+    if (r.gauge_explicit) {
+      o += fmt::format("  gauge (u^{{ab}}_c taking A to B; {} vertices differ from 1, checked by applying it):\n",
+                       r.gauge.size());
+      for (const GaugeValue& v : r.gauge) o += fmt::format("    u[{}] = {}\n", printable(v.vertex), v.value);
+    } else if (!r.gauge_note.empty()) {
+      o += "  gauge: " + r.gauge_note + "\n";
+    }
+  } else {
+    o += fmt::format("  differs: {}: {}\n    A: {}\n    B: {}\n", r.differs.invariant, printable(r.differs.detail),
+                     printable(r.differs.value_a), printable(r.differs.value_b));
+    for (const LoopFactor& f : r.differs.loop)
+      o += fmt::format("    factor ({})^{} with B/A = {}\n", printable(f.entry), f.exponent, f.ratio);
+  }
+  for (const std::string& n : r.notes) o += "  note: " + printable(n) + "\n";
+  return o;
+}
+
 }  // namespace zb

@@ -7,6 +7,7 @@
 #include <string>
 
 #include "zetabraid/model/check.hpp"
+#include "zetabraid/model/compare.hpp"
 #include "zetabraid/model/invariants.hpp"
 
 namespace zb {
@@ -22,5 +23,12 @@ std::string check_report_json(const Model& m, const std::string& path, const Che
 /// [gauss_sum, gauss_phase,] central_charge_mod8, modular, verlinde {ok, checked}, [fs_twist_formula_ok,] notes.
 std::string invariants_text(const Model& m, const Invariants& inv, long digits = 15);
 std::string invariants_json(const Model& m, const Invariants& inv, long digits = 15);
+
+/// The result of compare_models for files path_a and path_b. JSON keys: verdict, file_a, file_b, relabeling
+/// {labelA: labelB} (when equivalent), gauge [{vertex, u}] (vertices not listed have u = 1; present when explicit),
+/// gauge_note, differs {invariant, detail, a, b[, loop [{entry, exponent, ratio}]]} (when not equivalent),
+/// relabelings_tried, notes, exact.
+std::string compare_text(const CompareResult& r, const std::string& path_a, const std::string& path_b);
+std::string compare_json(const CompareResult& r, const std::string& path_a, const std::string& path_b);
 
 }  // namespace zb

@@ -1,0 +1,58 @@
+// Transformations of a model that keep the category it describes (gauge, relabelling) or give its mirror, and the
+// move of two models into one common field (used by model/compare.hpp).
+//
+// Gauge action (multiplicity-free), derived here for the conventions of model.hpp: rescaling every splitting
+// vertex |a, b; c> by a nonzero u^{ab}_c turns the left-associated tree |(a b -> e) c -> d> into
+// u^{ab}_e u^{ec}_d times itself and the right-associated one into u^{bc}_f u^{af}_d times itself, so
+//     [F'^{abc}_d]_{ef} = u^{ab}_e u^{ec}_d / (u^{bc}_f u^{af}_d) [F^{abc}_d]_{ef},
+// and the exchange V^{ab}_c -> V^{ba}_c becomes
+//     R'^{ab}_c = u^{ab}_c / u^{ba}_c R^{ab}_c.
+// The F-formula is the one of Kitaev, Ann. Phys. 321 (2006) 2, App. E and Bonderson's thesis (Caltech 2007)
+// eq. (2.32) (from memory). For R those sources write u^{ba}_c/u^{ab}_c (eq. (2.33), from memory): their R^{ab}_c
+// is read on the other side of the vertex. What decides here is this project's hexagon (docs/model-format.md):
+// inserting both factors, the terms of the sum over f pick up a common factor only when R'^{cf}_d/R^{cf}_d =
+// u^{cf}_d/u^{fc}_d, and then both sides agree; with the opposite ratio a gauge copy fails the hexagon.
+// tests/model/test_transform.cpp checks both (a gauge copy passes check_model, the opposite ratio does not).
+#pragma once
+#include <array>
+#include <cstdint>
+#include <map>
+#include <string>
+#include <vector>
+
+#include "zetabraid/model/model.hpp"
+
+namespace zb {
+
+/// Vertex factors u^{ab}_c (key {a, b, c}); a vertex not listed has u = 1.
+using Gauge = std::map<std::array<int, 3>, Scalar>;
+
+/// The model with every F entry and R-symbol transformed by the gauge (formulas above). Values of u must lie in
+/// m.field and be nonzero (MathError otherwise). The unitarity claim is kept only when every |u| = 1.
+Model apply_gauge(const Model& m, const Gauge& u);
+
+/// A random gauge with a fixed seed: u^{ab}_c = (+-p/q) zeta^k with 1 <= p, q <= 5 and zeta the field's root of
+/// unity, u = 1 on the vertices with the unit (so F-symbols with the unit stay 1).
+Gauge random_gauge(const Model& m, std::uint64_t seed);
+
+/// The model with its labels permuted and renamed: old label i becomes label perm[i] of the result, named
+/// names[perm[i]]. perm must be a permutation with perm[0] = 0 (MathError otherwise).
+Model relabel_model(const Model& m, const std::vector<int>& perm, const std::vector<std::string>& names);
+
+/// Parses "a:b,c:d,..." (label a of m is called b afterwards) into perm and names for relabel_model. When the new
+/// names are a permutation of the old ones, the labels move to the positions of their new names (the unit must
+/// keep its name); otherwise positions stay and only names change. InputError on unknown labels, repeats or
+/// clashes.
+void parse_relabeling(const Model& m, const std::string& spec, std::vector<int>* perm, std::vector<std::string>* names);
+
+/// The complex conjugate ("mirror") model: every F entry and R-symbol conjugated.
+Model mirror_model(const Model& m);
+
+/// A fresh field containing both models' fields: conductor lcm(N_a, N_b), the radicands of a and then of b.
+FieldPtr common_field(const Model& a, const Model& b);
+
+/// The same model with every value moved into the field `to` (which must contain m.field: zeta_N -> zeta_M^(M/N),
+/// sqrt(d_j) -> the positive root of the image of d_j). MathError when N does not divide the conductor of `to`.
+Model move_to_field(const Model& m, const FieldPtr& to);
+
+}  // namespace zb
