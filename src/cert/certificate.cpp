@@ -8,34 +8,23 @@
 #include <sstream>
 
 #include "zetabraid/error.hpp"
+#include "zetabraid/linalg/render.hpp"
 
 namespace zb {
 
 using ojson = nlohmann::ordered_json;
 
-std::string read_file_bytes(const std::string& path) {
-  std::ifstream f(path, std::ios::binary);
-  if (!f) throw InputError(fmt::format("{}: cannot read file", path));
-  std::ostringstream s;
-  s << f.rdbuf();
-  return s.str();
-}
-
-std::string sha256_file(const std::string& path) { return sha256_hex(read_file_bytes(path)); }
 
 namespace {
 
-ojson matrix_rows(const Matrix& m) {
-  ojson rows = ojson::array();
-  for (size_t i = 0; i < m.rows(); ++i) {
-    ojson r = ojson::array();
-    for (size_t j = 0; j < m.cols(); ++j) r.push_back(m(i, j).str());
-    rows.push_back(std::move(r));
-  }
-  return rows;
+// The SHA-256 of the bytes the model was parsed from (never a second read of the file, which could have changed).
+std::string model_sha256(const CertificateInputs& in) {
+  if (!in.model->source_sha256.empty()) return in.model->source_sha256;
+  throw InputError("a certificate needs a model loaded from a file (its SHA-256 is recorded when it is parsed)");
 }
 
-ojson matrix_columns(const Matrix& m) { return matrix_rows(m.transpose()); }
+
+ojson matrix_columns(const Matrix& m) { return matrix_json(m.transpose()); }
 
 ojson or_null(const std::string& s) { return s.empty() ? ojson(nullptr) : ojson(s); }
 
@@ -66,7 +55,7 @@ std::string certificate_json(const CertificateInputs& in, const CertifyResult& r
   ojson c;
   c["format"] = "zetabraid-certificate";
   c["version"] = 2;
-  c["model"] = {{"file", in.model_path}, {"sha256", sha256_file(in.model_path)}, {"name", m.name},
+  c["model"] = {{"file", in.model_path}, {"sha256", model_sha256(in)}, {"name", m.name},
                 {"unitary", m.claims_unitary}};
   ojson rad = ojson::array();
   for (int j = 0; j < m.field->radicand_count(); ++j) rad.push_back(m.field->radicand(j).str());
@@ -91,8 +80,8 @@ std::string certificate_json(const CertificateInputs& in, const CertifyResult& r
   leak["lower"] = or_null(r.leakage_lower);
   c["claim"] = {{"verdict", verdict_name(r.verdict)}, {"leakage", leak}};
   c["method"] = {{"name", method_name(r.method)}, {"precision_bits", r.precision}};
-  c["hints"] = {{"image", r.image ? matrix_rows(*r.image) : ojson(nullptr)},
-                {"action", r.action ? matrix_rows(*r.action) : ojson(nullptr)}};
+  c["hints"] = {{"image", r.image ? matrix_json(*r.image) : ojson(nullptr)},
+                {"action", r.action ? matrix_json(*r.action) : ojson(nullptr)}};
   c["proof"] = proof_json(r);
   return c.dump(2) + "\n";
 }

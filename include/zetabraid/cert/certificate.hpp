@@ -8,15 +8,10 @@
 
 namespace zb {
 
-/// Lower-case hex SHA-256 of a file's bytes (sha256_hex, io/sha256.hpp). InputError when unreadable.
-std::string sha256_file(const std::string& path);
-/// Whole file as bytes; InputError naming the file when unreadable.
-std::string read_file_bytes(const std::string& path);
-
 /// Everything a certificate speaks about.
 struct CertificateInputs {
   std::string model_path;        ///< as given (the checker looks beside the certificate, then in the cwd)
-  const Model* model = nullptr;
+  const Model* model = nullptr;  ///< loaded from a file: its source_sha256 is the hash written (the bytes parsed)
   std::vector<int> anyons;
   int total = 0;
   std::string keep_kind;         ///< "charges" (spec), "vectors" (explicit basis) or "all"
