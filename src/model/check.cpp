@@ -299,7 +299,7 @@ void StructureChecks::unitarity() {
 }
 
 // At most this many equation terms are written out to locate wrong entries (or to check around missing ones).
-constexpr long kMaxBlameTerms = 20'000'000;
+constexpr long kMaxBlameTerms = 2'000'000;
 
 // Pentagons and hexagons: the fast drivers for complete data, the written-out equations (blame.hpp) when symbols
 // are missing (so that no equation is evaluated with a made-up value); then suspects when an equation fails.

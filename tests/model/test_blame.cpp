@@ -190,6 +190,16 @@ TEST_CASE("suspects: the Z_4 sign flip of the issue names F^{1 1 1}_3 on its lin
   CHECK(r.suspects[0].line == bad.f_line.at({1, 1, 1, 3, 2, 2}));
   CHECK(r.suspects[0].repair == "1");
   CHECK(r.suspects[0].failures > r.suspects[1].failures);
+  // Threads never change results (common practice of this project): the same suspects at 2 threads.
+  CheckOptions two;
+  two.threads = 2;
+  CheckReport r2 = check_model(bad, two);
+  REQUIRE(r2.suspects.size() == r.suspects.size());
+  for (size_t i = 0; i < r.suspects.size(); ++i) {
+    CHECK(r2.suspects[i].symbol == r.suspects[i].symbol);
+    CHECK(r2.suspects[i].repair == r.suspects[i].repair);
+    CHECK(r2.suspects[i].passes == r.suspects[i].passes);
+  }
   const std::string t = check_report_text(bad, "z4.toml", r);
   CHECK(t.find(fmt::format("F^{{1 1 1}}_3[2,2] on line {} should be 1\n", r.suspects[0].line)) != std::string::npos);
   // Every listed pentagon/hexagon failure carries lines, the top suspect's first when it is involved.
