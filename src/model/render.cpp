@@ -28,7 +28,8 @@ std::string suspects_text(const std::string& path, const CheckReport& rep) {
     std::string at = s.line ? fmt::format("{}:{}", printable(path), s.line) : printable(path);
     o += fmt::format("  {} ({}): in {} failing and {} passing equations\n", s.symbol, at, s.failures, s.passes);
     if (!s.repair.empty())
-      o += fmt::format("    {} on line {} should be {}\n", s.symbol, s.line, s.repair);
+      o += fmt::format("    {} on {} should be {}\n", s.symbol, s.line ? fmt::format("line {}", s.line) : "an unknown line",
+                       s.repair);
     else
       o += "    no single value of this entry makes every equation involving it hold\n";
   }
@@ -65,7 +66,7 @@ std::string check_report_json(const Model& m, const std::string& path, const Che
     ojson su = ojson::array();
     for (const Suspect& s : rep.suspects)
       su.push_back(ojson{{"symbol", s.symbol},
-                         {"line", s.line},
+                         {"line", s.line ? ojson(s.line) : ojson(nullptr)},
                          {"failures", s.failures},
                          {"passes", s.passes},
                          {"repair", s.repair.empty() ? ojson(nullptr) : ojson(s.repair)}});
