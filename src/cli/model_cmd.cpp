@@ -119,16 +119,32 @@ void add_model_commands(CLI::App& app, Action& action) {
       std::string file;
       bool json = false;
       long digits = 15;
+      bool unchecked = false;
     };
     auto o = std::make_shared<Opts>();
     cmd->add_option("file", o->file, "model file")->required();
+    cmd->add_flag("--unchecked", o->unchecked,
+                  "print invariants even when model check fails (each marked as computed from unverified data)");
     cmd->add_flag("--json", o->json, "one JSON object; every number as {exact, ball}");
     cmd->add_option("--digits", o->digits, "digits of the enclosures")->check(CLI::Range(1, 10000));
     cmd->callback([o, &action] {
       action = [o] {
         Model m = load_model(o->file);
+        if (!o->unchecked) {
+          // Invariants of inconsistent data mean nothing: refuse unless --unchecked.
+          CheckOptions copt;
+          copt.max_failures = 1;
+          copt.max_suspects = 0;
+          CheckReport rep = check_model(m, copt);
+          if (!rep.ok) {
+            fmt::print(stderr, "{}", model_info_refusal(m, o->file, rep));
+            return kExitClaimFalse;
+          }
+        }
         Invariants inv = compute_invariants(m, o->digits);
-        fmt::print("{}", o->json ? invariants_json(m, inv, o->digits) + "\n" : invariants_text(m, inv, o->digits));
+        const bool verified = !o->unchecked;
+        fmt::print("{}", o->json ? invariants_json(m, inv, o->digits, verified) + "\n"
+                                 : invariants_text(m, inv, o->digits, verified));
         return inv.verlinde_ok ? kExitOk : kExitClaimFalse;
       };
     });

@@ -7,7 +7,9 @@
 #include <fmt/format.h>
 
 #include <chrono>
+#include <optional>
 
+#include "blame.hpp"
 #include "equations.hpp"
 #include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
@@ -70,6 +72,14 @@ struct StructureChecks {
       for (size_t j = 0; j < B.cols.size(); ++j)
         if (const Scalar* v = M.f_symbol(B.a, B.b, B.c, B.d, B.rows[i], B.cols[j])) X(i, j) = *v;
     return X;
+  }
+  // Source line of the block's row e (the first given entry of that row; 0 = unknown).
+  int block_line(const Model::FBlock& B, int e) const {
+    for (int f : B.cols) {
+      auto it = M.f_line.find({B.a, B.b, B.c, B.d, e, f});
+      if (it != M.f_line.end() && it->second) return it->second;
+    }
+    return 0;
   }
   std::string block_name(const Model::FBlock& B) const {
     return fmt::format("a={} b={} c={} d={}", L(B.a), L(B.b), L(B.c), L(B.d));
@@ -203,7 +213,8 @@ void StructureChecks::f_invertible() {
     size_t rank = block_matrix(B).rank();
     if (rank != B.rows.size())
       add_failure(cc, simple(cc.name, block_name(B),
-                             fmt::format("F^{{abc}}_d is singular (rank {} of {})", rank, B.rows.size())));
+                             fmt::format("F^{{abc}}_d is singular (rank {} of {})", rank, B.rows.size()),
+                             B.rows.empty() ? 0 : block_line(B, B.rows[0])));
   }
   rep.checks.push_back(cc);
 }
@@ -218,8 +229,10 @@ void StructureChecks::f_normalisation() {
       for (size_t j = 0; j < B.cols.size(); ++j) {
         ++cc.count;
         if (X(i, j).is_one()) continue;
+        auto ln = M.f_line.find({B.a, B.b, B.c, B.d, B.rows[i], B.cols[j]});
         CheckFailure f = simple(cc.name, block_name(B) + fmt::format(" e={} f={}", L(B.rows[i]), L(B.cols[j])),
-                                "an F-symbol with the unit among a, b, c must be 1");
+                                "an F-symbol with the unit among a, b, c must be 1",
+                                ln == M.f_line.end() ? 0 : ln->second);
         add_failure(cc, with_residual(std::move(f), X(i, j) - Scalar(M.field, 1)));
       }
   }
@@ -260,22 +273,61 @@ void StructureChecks::unitarity() {
     Matrix X = block_matrix(B);
     Matrix D = X * X.adjoint() - Matrix::identity(M.field, B.rows.size());
     if (D.is_zero()) continue;
-    Scalar worst(M.field);
-    for (size_t i = 0; i < D.rows() && worst.is_zero(); ++i)
-      for (size_t j = 0; j < D.cols() && worst.is_zero(); ++j) worst = D(i, j);
-    add_failure(cc, with_residual(simple(cc.name, block_name(B),
-                                         "F^{abc}_d (F^{abc}_d)^dagger != 1 (gauge claimed unitary)"),
-                                  worst));
+    size_t wi = 0, wj = 0;
+    for (size_t i = 0; i < D.rows(); ++i)
+      for (size_t j = 0; j < D.cols(); ++j)
+        if (D(wi, wj).is_zero() && !D(i, j).is_zero()) wi = i, wj = j;
+    add_failure(cc, with_residual(simple(cc.name,
+                                         block_name(B) + fmt::format(" entry [{},{}] of F F^dagger",
+                                                                     L(B.rows[wi]), L(B.rows[wj])),
+                                         "F^{abc}_d (F^{abc}_d)^dagger != 1 (gauge claimed unitary); the residual "
+                                         "is that entry minus the identity's",
+                                         block_line(B, B.rows[wi])),
+                                  D(wi, wj)));
   }
   for (const auto& [k, v] : M.r_symbols()) {
     ++cc.count;
     Scalar dev = v.abs2() - Scalar(M.field, 1);
     if (dev.is_zero()) continue;
+    auto ln = M.r_line.find(k);
     add_failure(cc, with_residual(simple(cc.name, fmt::format("R a={} b={} c={}", L(k[0]), L(k[1]), L(k[2])),
-                                         "|R^{ab}_c|^2 != 1 (gauge claimed unitary)"),
+                                         "|R^{ab}_c|^2 != 1 (gauge claimed unitary)",
+                                         ln == M.r_line.end() ? 0 : ln->second),
                                   dev));
   }
   rep.checks.push_back(cc);
+}
+
+// At most this many equation terms are written out to locate wrong entries (or to check around missing ones).
+constexpr long kMaxBlameTerms = 2'000'000;
+
+// Pentagons and hexagons: the fast drivers for complete data, the written-out equations (blame.hpp) when symbols
+// are missing (so that no equation is evaluated with a made-up value); then suspects when an equation fails.
+void equations_and_blame(const Model& M, const CheckOptions& opt, CheckReport& rep) {
+  const bool missing = blame::has_missing_symbols(M);
+  const size_t first = rep.checks.size();
+  std::optional<blame::EquationSet> E;
+  std::vector<blame::Status> st;
+  if (missing) {
+    E = blame::enumerate_equations(M, kMaxBlameTerms);
+    st = blame::evaluate(M, *E, opt.threads);
+    blame::report_equations(M, opt, *E, st, rep);
+  } else {
+    equations::check_pentagons_hexagons(M, opt, rep);
+  }
+  long failed = 0;
+  for (size_t i = first; i < rep.checks.size(); ++i) failed += rep.checks[i].failed;
+  if (failed == 0 || opt.max_suspects == 0) return;
+  if (!E) {
+    try {
+      E = blame::enumerate_equations(M, kMaxBlameTerms);
+    } catch (const ResourceError& e) {
+      rep.suspects_note = e.what();
+      return;
+    }
+    st = blame::evaluate(M, *E, opt.threads);
+  }
+  blame::find_suspects(M, opt, *E, st, rep);
 }
 
 }  // namespace
@@ -296,7 +348,7 @@ CheckReport check_model(const Model& M, const CheckOptions& opt) {
   s.f_invertible();
   s.f_normalisation();
   if (M.has_r) s.r_admissible();
-  equations::check_pentagons_hexagons(M, opt, rep);
+  equations_and_blame(M, opt, rep);
   if (M.claims_unitary) s.unitarity();
   for (const CheckCount& c : rep.checks) rep.ok = rep.ok && c.failed == 0;
   rep.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();

@@ -120,10 +120,13 @@ class Loader {
     if (const toml::node* u = root.get("r_unlisted")) {
       Scalar v = value(*u, "r_unlisted", m.field);
       m.has_r = true;
+      // Only the R-symbols with the unit among a, b (R^{1b}_b, R^{a1}_a): a missing R-symbol of two nontrivial
+      // labels stays missing, so that model check reports it instead of silently using this value.
       for (int a = 0; a < m.label_count(); ++a)
         for (int b = 0; b < m.label_count(); ++b)
           for (int c : m.channels(a, b))
-            if (!m.r_given.count({a, b, c})) put_r(m, {a, b, c}, v, static_cast<int>(u->source().begin.line), u, "r_unlisted");
+            if ((a == 0 || b == 0) && !m.r_given.count({a, b, c}))
+              put_r(m, {a, b, c}, v, static_cast<int>(u->source().begin.line), u, "r_unlisted");
     }
     return m;
   }

@@ -20,6 +20,23 @@ constexpr long kInvariantGuardBits = 16;
 ojson num(const Scalar& s, long digits) { return value_json(s, digits, kInvariantGuardBits); }
 ojson num_int(const FieldPtr& f, long v, long digits) { return num(Scalar(f, v), digits); }
 
+// The ranked suspects of a failed check, with their one-entry repairs.
+std::string suspects_text(const std::string& path, const CheckReport& rep) {
+  std::string o;
+  if (!rep.suspects.empty()) o += "suspects (most failing equations first, then fewest passing ones):\n";
+  for (const Suspect& s : rep.suspects) {
+    std::string at = s.line ? fmt::format("{}:{}", printable(path), s.line) : printable(path);
+    o += fmt::format("  {} ({}): in {} failing and {} passing equations\n", s.symbol, at, s.failures, s.passes);
+    if (!s.repair.empty())
+      o += fmt::format("    {} on {} should be {}\n", s.symbol, s.line ? fmt::format("line {}", s.line) : "an unknown line",
+                       s.repair);
+    else
+      o += "    no single value of this entry makes every equation involving it hold\n";
+  }
+  if (!rep.suspects_note.empty()) o += "suspects not computed: " + rep.suspects_note + "\n";
+  return o;
+}
+
 }  // namespace
 
 std::string check_report_json(const Model& m, const std::string& path, const CheckReport& rep) {
@@ -32,6 +49,7 @@ std::string check_report_json(const Model& m, const std::string& path, const Che
     ojson x{{"count", c.count}, {"failed", c.failed}};
     if (c.skipped) x["skipped"] = true;
     if (!c.note.empty()) x["note"] = c.note;
+    if (c.not_checked) x["not_checked"] = c.not_checked;
     checks[c.name] = x;
   }
   j["checks"] = checks;
@@ -40,9 +58,26 @@ std::string check_report_json(const Model& m, const std::string& path, const Che
     ojson x{{"check", f.check}, {"labels", f.where}, {"condition", f.what}};
     if (!f.residual.empty()) x["residual"] = {{"exact", f.residual}, {"ball", f.residual_ball}};
     if (f.line) x["line"] = f.line;
+    if (!f.lines.empty()) x["lines"] = f.lines;
     fl.push_back(x);
   }
   j["failures"] = fl;
+  if (!rep.ok) {
+    ojson su = ojson::array();
+    for (const Suspect& s : rep.suspects)
+      su.push_back(ojson{{"symbol", s.symbol},
+                         {"line", s.line ? ojson(s.line) : ojson(nullptr)},
+                         {"failures", s.failures},
+                         {"passes", s.passes},
+                         {"repair", s.repair.empty() ? ojson(nullptr) : ojson(s.repair)}});
+    j["suspects"] = su;
+    if (!rep.suspects_note.empty()) j["suspects_note"] = rep.suspects_note;
+  }
+  if (!rep.missing.empty()) {
+    ojson mi = ojson::array();
+    for (const MissingSymbol& s : rep.missing) mi.push_back(ojson{{"symbol", s.symbol}, {"needed_by", s.needed_by}});
+    j["missing"] = mi;
+  }
   j["exact"] = true;
   j["seconds"] = std::round(rep.seconds * 1000.0) / 1000.0;
   return j.dump();
@@ -55,13 +90,18 @@ std::string check_report_text(const Model& m, const std::string& path, const Che
     if (c.skipped)
       o += fmt::format("  {:<22} skipped: {}\n", c.name, c.note);
     else
-      o += fmt::format("  {:<22} {:>10} checked exactly, {} failed\n", c.name, c.count, c.failed);
+      o += fmt::format("  {:<22} {:>10} checked exactly, {} failed{}\n", c.name, c.count, c.failed,
+                       c.not_checked ? fmt::format(", {} not checked (symbols missing)", c.not_checked) : "");
   }
+  for (const MissingSymbol& s : rep.missing)
+    o += fmt::format("MISSING {}: not in the file; {} equations that need it were not checked\n", s.symbol,
+                     s.needed_by);
   for (const CheckFailure& f : rep.failures) {
     o += fmt::format("FAILED {}: {}{}\n  {}\n", f.check, f.where, f.line ? fmt::format(" ({}:{})", path, f.line) : "",
                      f.what);
     if (!f.residual.empty()) o += fmt::format("  residual = {}\n  residual lies in {}\n", f.residual, f.residual_ball);
   }
+  o += suspects_text(path, rep);
   o += fmt::format("  ({:.2f} s)\n", rep.seconds);
   long listed = static_cast<long>(rep.failures.size()), total = 0;
   for (const CheckCount& c : rep.checks) total += c.failed;
@@ -69,7 +109,24 @@ std::string check_report_text(const Model& m, const std::string& path, const Che
   return o;
 }
 
-std::string invariants_json(const Model& m, const Invariants& inv, long digits) {
+std::string model_info_refusal(const Model& m, const std::string& path, const CheckReport& rep) {
+  std::string o = fmt::format(
+      "model info: {} ({}) fails model check, so its invariants would be computed from inconsistent data; run "
+      "`zetabraid model check` for the full report, or pass --unchecked\n",
+      printable(m.name.empty() ? path : m.name), printable(path));
+  for (const CheckFailure& f : rep.failures) {
+    o += fmt::format("first failure: {}: {}{}\n  {}\n", f.check, f.where,
+                     f.line ? fmt::format(" ({}:{})", printable(path), f.line) : "", f.what);
+    break;
+  }
+  for (const MissingSymbol& s : rep.missing) {
+    o += fmt::format("missing: {}\n", s.symbol);
+    break;
+  }
+  return o;
+}
+
+std::string invariants_json(const Model& m, const Invariants& inv, long digits, bool verified) {
   const FieldPtr& F = m.field;
   ojson j;
   j["model"] = m.name;
@@ -112,19 +169,26 @@ std::string invariants_json(const Model& m, const Invariants& inv, long digits) 
   j["verlinde"] = ojson{{"ok", inv.verlinde_ok}, {"checked", inv.verlinde_checked}};
   if (inv.modular) j["fs_twist_formula_ok"] = inv.fs_twist_formula_ok;
   j["notes"] = inv.notes;
+  if (!verified) j["verified"] = false;
   return j.dump();
 }
 
-std::string invariants_text(const Model& m, const Invariants& inv, long digits) {
+std::string invariants_text(const Model& m, const Invariants& inv, long digits, bool verified) {
   std::string o = fmt::format("model {}: exact invariants (each enclosure is a rigorous ball)\n", printable(m.name));
+  if (!verified)
+    o += "  WARNING: verified: false -- the data fail model check; every value below is computed from unverified "
+         "data\n";
+  const std::string mark = verified ? "" : "  [unverified]";
   auto line = [&](const std::string& what, const Scalar& s) {
-    o += fmt::format("  {:<24} {}\n  {:<24}   in {}\n", what, s.str(), "", ball_text(s, digits, kInvariantGuardBits));
+    o += fmt::format("  {:<24} {}{}\n  {:<24}   in {}\n", what, s.str(), mark, "",
+                     ball_text(s, digits, kInvariantGuardBits));
   };
   const int n = m.label_count();
   for (int a = 0; a < n; ++a) line("d_" + m.labels[a], inv.dims[static_cast<size_t>(a)]);
   line("D^2", inv.global_dim2);
   line("D", inv.global_dim);
-  for (int a = 0; a < n; ++a) o += fmt::format("  {:<24} {}\n", "nu_" + m.labels[a] + " (FS indicator)", inv.fs[a]);
+  for (int a = 0; a < n; ++a)
+    o += fmt::format("  {:<24} {}{}\n", "nu_" + m.labels[a] + " (FS indicator)", inv.fs[a], mark);
   if (inv.braided) {
     for (int a = 0; a < n; ++a) line("theta_" + m.labels[a], inv.twists[static_cast<size_t>(a)]);
     for (int a = 0; a < n; ++a)
@@ -134,8 +198,8 @@ std::string invariants_text(const Model& m, const Invariants& inv, long digits) 
     line("p_+/D", inv.gauss_phase);
     o += fmt::format("  modular (S invertible)   {}\n", inv.modular ? "yes" : "no");
     if (inv.central_charge_known)
-      o += fmt::format("  central charge mod 8     {}\n",
-                       inv.c_den == 1 ? std::to_string(inv.c_num) : fmt::format("{}/{}", inv.c_num, inv.c_den));
+      o += fmt::format("  central charge mod 8     {}{}\n",
+                       inv.c_den == 1 ? std::to_string(inv.c_num) : fmt::format("{}/{}", inv.c_num, inv.c_den), mark);
     if (inv.modular)
       o += fmt::format("  Verlinde formula         {} ({} fusion coefficients compared exactly)\n",
                        inv.verlinde_ok ? "reproduces N" : "does NOT reproduce N", inv.verlinde_checked);

@@ -22,6 +22,7 @@ struct CheckCount {
   long failed = 0;
   bool skipped = false;
   std::string note;   ///< why skipped, or what was checked
+  long not_checked = 0;  ///< equations skipped because a symbol they need is missing from the file
 };
 
 struct CheckFailure {
@@ -30,7 +31,26 @@ struct CheckFailure {
   std::string what;         ///< the condition, e.g. "pentagon: left - right != 0"
   std::string residual;     ///< exact residual ("" when not a number)
   std::string residual_ball;
-  int line = 0;             ///< source line of an offending entry, when known
+  int line = 0;             ///< source line of an offending entry, when known (for an equation: of its top suspect)
+  std::vector<int> lines;   ///< for an equation: the source lines of every symbol it involves, ascending
+};
+
+/// A symbol (F entry or R-symbol) that failing equations involve, ranked by blame (check_model fills these when
+/// a pentagon or hexagon fails). See docs/model-format.md "Which entry is wrong".
+struct Suspect {
+  std::string symbol;        ///< "F^{a b c}_d[e,f]" or "R^{a b}_c" (label names)
+  int line = 0;              ///< source line of the entry (0 = unknown)
+  long failures = 0;         ///< failing equations that involve it
+  long passes = 0;           ///< passing equations that involve it
+  /// A value that makes every equation involving the symbol hold exactly (and, when claimed, unitarity and the
+  /// other structural conditions of its block), found by solving a failing equation linear in it; empty if none.
+  std::string repair;
+};
+
+/// An admissible symbol that some equation needs but the file does not give.
+struct MissingSymbol {
+  std::string symbol;        ///< as in Suspect
+  long needed_by = 0;        ///< equations skipped because of it (and possibly other missing symbols)
 };
 
 struct CheckOptions {
@@ -39,6 +59,8 @@ struct CheckOptions {
   long ball_digits = 15;
   /// Use the number-field kernel even when the integer kernel applies (for tests comparing the two).
   bool force_field_kernel = false;
+  /// Suspects listed (each with a one-entry repair attempt) when an equation fails; 0 turns the search off.
+  size_t max_suspects = 5;
   /// Called now and then from the checking thread with a stage name and the fraction done (0..1).
   std::function<void(const std::string&, double)> progress;
 };
@@ -47,6 +69,9 @@ struct CheckReport {
   bool ok = true;
   std::vector<CheckCount> checks;
   std::vector<CheckFailure> failures;
+  std::vector<Suspect> suspects;       ///< ranked: most failing equations first, then fewest passing ones
+  std::vector<MissingSymbol> missing;  ///< each missing symbol once, in label order
+  std::string suspects_note;           ///< why no suspects were computed, when equations failed
   double seconds = 0;
   const CheckCount* find(const std::string& name) const;
 };

@@ -21,8 +21,13 @@ std::string check_report_json(const Model& m, const std::string& path, const Che
 /// Invariants; every number as {"exact", "ball"} in JSON, enclosures with `digits` significant digits.
 /// JSON keys: model, labels, dimensions, global_dimension_squared, global_dimension, fs_indicators, twists, S, T,
 /// [gauss_sum, gauss_phase,] central_charge_mod8, modular, verlinde {ok, checked}, [fs_twist_formula_ok,] notes.
-std::string invariants_text(const Model& m, const Invariants& inv, long digits = 15);
-std::string invariants_json(const Model& m, const Invariants& inv, long digits = 15);
+/// `verified` = false (model info --unchecked: the data failed model check) adds the key "verified": false last in
+/// JSON and a warning line before and on every value in text.
+std::string invariants_text(const Model& m, const Invariants& inv, long digits = 15, bool verified = true);
+std::string invariants_json(const Model& m, const Invariants& inv, long digits = 15, bool verified = true);
+
+/// Why `model info` refuses data that fail model check: the reason and the first failure (lines, no JSON).
+std::string model_info_refusal(const Model& m, const std::string& path, const CheckReport& rep);
 
 /// The result of compare_models for files path_a and path_b. JSON keys: verdict, file_a, file_b, relabeling
 /// {labelA: labelB} (when equivalent), gauge [{vertex, u}] (vertices not listed have u = 1; present when explicit),
