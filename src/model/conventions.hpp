@@ -18,8 +18,8 @@ struct FileConventions {
   enum class FMatrix { kAsIs, kTranspose, kInverse, kInverseTranspose };
   FMatrix f_matrix = FMatrix::kAsIs;
   bool r_clockwise = false;  ///< the printed R^{ab}_c is the clockwise exchange, the inverse of zetabraid's
-  /// Where letter a, b, c, d, x (printed row), y (printed column) stands in a six-label F key; the four-label key
-  /// "a b c d" lists a, b, c, d in the order they have in the six-label key.
+  /// Where letter a, b, c, d, e (channel of a x b), f (channel of b x c) stands in a six-label F key; the
+  /// four-label key "a b c d" lists a, b, c, d in the order they have in the six-label key.
   std::array<int, 6> f_key_pos{0, 1, 2, 3, 4, 5};
   int line = 0;  ///< line of the [conventions] table (0: absent)
 

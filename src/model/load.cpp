@@ -172,10 +172,10 @@ class Loader {
   }
 
   // f_indices: the letters a b c d e f, each once, in the order of the six labels of an F key (separators ' ',
-  // '-', ';', ',' ignored); e is the printed row index and f the printed column index.
+  // '-', ';', ',' ignored); e is the channel of a x b and f the channel of b x c.
   void read_f_indices(const std::string& s, const toml::node* at, const std::string& key) {
-    const std::string what = "expected the letters a, b, c, d, e, f each once (e: printed row index, f: printed "
-                             "column index), e.g. \"abcd-ef\" or \"abe-cdf\"";
+    const std::string what = "expected the letters a, b, c, d, e, f each once (e: the channel of a x b, f: the "
+                             "channel of b x c), e.g. \"abcd-ef\", \"abcd-fe\" or \"abe-cdf\"";
     std::array<int, 6> pos{-1, -1, -1, -1, -1, -1};
     int n = 0;
     for (char ch : s) {
@@ -187,7 +187,7 @@ class Loader {
     conv_.f_key_pos = pos;
   }
 
-  // The labels {a, b, c, d, x, y} (x printed row, y printed column) of an F key, or {a, b, c, d} of a block key,
+  // The labels {a, b, c, d, e, f} of an F key, or {a, b, c, d} of a block key,
   // from the labels in the order the file writes them (f_indices).
   std::vector<int> f_key_labels(const std::vector<int>& l) const {
     const auto& pos = conv_.f_key_pos;
@@ -197,7 +197,8 @@ class Loader {
       return out;
     }
     std::vector<int> order{0, 1, 2, 3};  // letters a..d sorted by their place in the six-label key
-    std::sort(order.begin(), order.end(), [&](int x, int y) { return pos[static_cast<size_t>(x)] < pos[static_cast<size_t>(y)]; });
+    std::sort(order.begin(), order.end(),
+              [&](int x, int y) { return pos[static_cast<size_t>(x)] < pos[static_cast<size_t>(y)]; });
     std::vector<int> out(4);
     for (size_t i = 0; i < 4; ++i) out[static_cast<size_t>(order[i])] = l[i];
     return out;
@@ -374,8 +375,8 @@ class Loader {
       int line = static_cast<int>(v.source().begin.line);
       const bool rr = conv_.rows_are_right();  // printed rows are the channels f of b x c
       if (l.size() == 6) {
-        put_f(m, {l[0], l[1], l[2], l[3], rr ? l[5] : l[4], rr ? l[4] : l[5]}, value(v, key, m.field), line, &v,
-              key);
+        // One entry: e (channel of a x b) and f (channel of b x c) are named by f_indices whatever the layout.
+        put_f(m, {l[0], l[1], l[2], l[3], l[4], l[5]}, value(v, key, m.field), line, &v, key);
         continue;
       }
       auto rows = m.left_channels(l[0], l[1], l[2], l[3]);

@@ -173,3 +173,25 @@ TEST_CASE("conventions: unknown values, partial and singular blocks are input er
   t = replace_once(fib_text("transpose", p), "\"t t t t\" = " + p, "\"t t t t 1 1\" = \"1\"");
   CHECK(msg(t) == "no error");
 }
+
+TEST_CASE("f_indices names e and f by meaning: a transposed table keyed [F]_{fe} entry by entry") {
+  // F = [[1, 2], [3, 4]] (rows e, columns f = 1, t) three ways: as a matrix in zetabraid's reading; as the printed
+  // transpose P = F^T; and entry by entry in the order a b c d f e (a source writing [F^{abc}_d]_{fe}).
+  const Model want = parse_model(fib_text("as-zetabraid", "[[\"1\", \"2\"], [\"3\", \"4\"]]"), "mem");
+  const Model tr = parse_model(fib_text("transpose", "[[\"1\", \"3\"], [\"2\", \"4\"]]"), "mem");
+  std::string t = replace_once(fib_text("transpose", "\"1\""), "\"t t t t\" = \"1\"",
+                               "\"t t t t 1 1\" = \"1\"\n\"t t t t t 1\" = \"2\"\n\"t t t t 1 t\" = \"3\"\n"
+                               "\"t t t t t t\" = \"4\"");
+  t = replace_once(t, "[field]", "f_indices = \"abcd-fe\"\n[field]");
+  const Model fe = parse_model(t, "mem");
+  for (const Model* m : {&tr, &fe})
+    for (int e = 0; e < 2; ++e)
+      for (int f = 0; f < 2; ++f) {
+        CAPTURE(e);
+        CAPTURE(f);
+        CHECK(m->f_symbol(1, 1, 1, 1, e, f)->str() == want.f_symbol(1, 1, 1, 1, e, f)->str());  // two fields
+      }
+  // Negative control: the same entries read with the default order "abcd-ef" give F^T.
+  const Model ef = parse_model(replace_once(t, "f_indices = \"abcd-fe\"\n", ""), "mem");
+  CHECK(ef.f_symbol(1, 1, 1, 1, 0, 1)->str() == want.f_symbol(1, 1, 1, 1, 1, 0)->str());
+}
