@@ -24,16 +24,18 @@ Model bundled(const std::string& name) { return load_model(zbtest::source_dir() 
 struct Expectation {
   const char* reference;  // bundled model (models/<name>.toml)
   CompareVerdict verdict;
+  bool conventions_matter;  // the file's [conventions] change its values (not defaults, not self-inverse on them)
 };
 
 // The verdicts each file's header states (sources and "from memory" notes are in the files).
 const std::map<std::string, Expectation> kExpected = {
-    {"fibonacci_preskill2004.toml", {"fibonacci", CompareVerdict::kEquivalentToMirror}},
-    {"ising_kitaev2006_nu1.toml", {"ising", CompareVerdict::kEquivalent}},
-    {"ising_kitaev2006_nu15.toml", {"ising", CompareVerdict::kEquivalentToMirror}},
-    {"semion_rsw2009.toml", {"su2_k1", CompareVerdict::kEquivalent}},
-    {"su2_k2_racah_layout.toml", {"su2_k2", CompareVerdict::kEquivalent}},
-    {"toric_code_kitaev2003.toml", {"toric_code", CompareVerdict::kEquivalent}},
+    {"fibonacci_preskill2004.toml", {"fibonacci", CompareVerdict::kEquivalentToMirror, false}},
+    {"ising_kitaev2006_nu1.toml", {"ising", CompareVerdict::kEquivalent, false}},
+    {"ising_kitaev2006_nu15.toml", {"ising", CompareVerdict::kEquivalentToMirror, false}},
+    {"semion_rsw2009.toml", {"su2_k1", CompareVerdict::kEquivalent, false}},
+    {"su2_k2_racah_layout.toml", {"su2_k2", CompareVerdict::kEquivalent, true}},
+    {"three_fermion_kitaev2006_nu8.toml", {"three_fermion", CompareVerdict::kEquivalent, false}},
+    {"toric_code_kitaev2003.toml", {"toric_code", CompareVerdict::kEquivalent, false}},
 };
 
 // The text without its [conventions] table (up to the next blank line).
@@ -64,8 +66,14 @@ TEST_CASE("every published table passes model check and equals its bundled model
     Model m = load_model(entry.path().string());
     CHECK(!m.source.empty());
     CHECK(check_model(m).ok);
-    CompareResult r = compare_models(bundled(it->second.reference), m);
+    const Model ref = bundled(it->second.reference);
+    CompareResult r = compare_models(ref, m);
     CHECK(verdict_name(r.verdict) == std::string(verdict_name(it->second.verdict)));
+    // Negative control: without its [conventions] table the file must fail model check or compare differently
+    // when its conventions matter; otherwise (defaults, or self-inverse on these values) nothing changes.
+    Model bare = parse_model(without_conventions(zbtest::slurp(entry.path().string())), name);
+    const bool same = check_model(bare).ok && compare_models(ref, bare).verdict == it->second.verdict;
+    CHECK(same == !it->second.conventions_matter);
   }
   CHECK(seen.size() == kExpected.size());
   CHECK(seen.size() >= 6);
