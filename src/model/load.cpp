@@ -11,6 +11,7 @@
 #include "zetabraid/field/expression.hpp"
 #include "zetabraid/io/input_file.hpp"
 #include "zetabraid/io/sha256.hpp"
+#include "conventions.hpp"
 
 namespace zb {
 
@@ -92,12 +93,13 @@ class Loader {
                                    printable(std::string(e.description()))));
     }
     static const std::set<std::string> known = {"format", "name", "source", "labels", "unitary", "field",
-                                                "constants", "fusion", "F", "R", "f_unlisted", "r_unlisted"};
+                                                "constants", "fusion", "F", "R", "f_unlisted", "r_unlisted",
+                                                "conventions"};
     for (auto&& [k, v] : root)
       if (!known.count(std::string(k.str())))
         fail(&v, std::string(k.str()),
              "unknown key; expected one of format, name, source, labels, unitary, [field], [constants], "
-             "f_unlisted, r_unlisted, [fusion], [F], [R]");
+             "f_unlisted, r_unlisted, [conventions], [fusion], [F], [R]");
     Model m;
     if (auto* f = root.get("format")) {
       auto s = f->value<std::string>();
@@ -110,6 +112,7 @@ class Loader {
       if (!b || !u->is_boolean()) fail(u, "unitary", "expected true or false");
       m.claims_unitary = *b;
     }
+    read_conventions(root);
     read_field(root, m);
     read_labels(root, m);
     read_constants(root, m);
@@ -128,6 +131,8 @@ class Loader {
             if ((a == 0 || b == 0) && !m.r_given.count({a, b, c}))
               put_r(m, {a, b, c}, v, static_cast<int>(u->source().begin.line), u, "r_unlisted");
     }
+    // The printed conventions are converted before anything else sees the model.
+    apply_conventions(m, conv_, origin_);
     return m;
   }
 
@@ -135,6 +140,69 @@ class Loader {
   std::string origin_;
   ExpressionLimits limits_;
   std::map<std::string, Scalar> names_;
+  FileConventions conv_;
+
+  // [conventions]: f_matrix, r_exchange, f_indices (docs/model-format.md, "Conventions of a printed table").
+  void read_conventions(const toml::table& root) {
+    const toml::node* cn = root.get("conventions");
+    if (!cn) return;
+    if (!cn->is_table()) fail(cn, "conventions", "expected a table [conventions]");
+    conv_.line = static_cast<int>(cn->source().begin.line);
+    for (auto&& [k, v] : *cn->as_table()) {
+      const std::string key = "conventions." + std::string(k.str());
+      auto s = v.value<std::string>();
+      if (k.str() == "f_matrix") {
+        using FM = FileConventions::FMatrix;
+        bool found = false;
+        for (FM c : {FM::kAsIs, FM::kTranspose, FM::kInverse, FM::kInverseTranspose})
+          if (v.is_string() && *s == f_matrix_name(c)) conv_.f_matrix = c, found = true;
+        if (!found)
+          fail(&v, key, "expected \"as-zetabraid\", \"transpose\", \"inverse\" or \"inverse-transpose\"");
+      } else if (k.str() == "r_exchange") {
+        if (!v.is_string() || (*s != "counterclockwise" && *s != "clockwise"))
+          fail(&v, key, "expected \"counterclockwise\" or \"clockwise\"");
+        conv_.r_clockwise = *s == "clockwise";
+      } else if (k.str() == "f_indices") {
+        if (!v.is_string()) fail(&v, key, "expected a string such as \"abcd-ef\"");
+        read_f_indices(*s, &v, key);
+      } else {
+        fail(&v, key, "unknown key; expected f_matrix, r_exchange or f_indices");
+      }
+    }
+  }
+
+  // f_indices: the letters a b c d e f, each once, in the order of the six labels of an F key (separators ' ',
+  // '-', ';', ',' ignored); e is the channel of a x b and f the channel of b x c.
+  void read_f_indices(const std::string& s, const toml::node* at, const std::string& key) {
+    const std::string what = "expected the letters a, b, c, d, e, f each once (e: the channel of a x b, f: the "
+                             "channel of b x c), e.g. \"abcd-ef\", \"abcd-fe\" or \"abe-cdf\"";
+    std::array<int, 6> pos{-1, -1, -1, -1, -1, -1};
+    int n = 0;
+    for (char ch : s) {
+      if (ch == ' ' || ch == '-' || ch == ';' || ch == ',') continue;
+      if (ch < 'a' || ch > 'f' || pos[static_cast<size_t>(ch - 'a')] >= 0) fail(at, key, what);
+      pos[static_cast<size_t>(ch - 'a')] = n++;
+    }
+    if (n != 6) fail(at, key, what);
+    conv_.f_key_pos = pos;
+  }
+
+  // The labels {a, b, c, d, e, f} of an F key, or {a, b, c, d} of a block key,
+  // from the labels in the order the file writes them (f_indices).
+  std::vector<int> f_key_labels(const std::vector<int>& l) const {
+    const auto& pos = conv_.f_key_pos;
+    if (l.size() == 6) {
+      std::vector<int> out(6);
+      for (size_t i = 0; i < 6; ++i) out[i] = l[static_cast<size_t>(pos[i])];
+      return out;
+    }
+    std::vector<int> order{0, 1, 2, 3};  // letters a..d sorted by their place in the six-label key
+    std::sort(order.begin(), order.end(),
+              [&](int x, int y) { return pos[static_cast<size_t>(x)] < pos[static_cast<size_t>(y)]; });
+    std::vector<int> out(4);
+    for (size_t i = 0; i < 4; ++i) out[static_cast<size_t>(order[i])] = l[i];
+    return out;
+  }
 
   std::string get_string(const toml::table& t, const char* key, bool required) {
     const toml::node* n = t.get(key);
@@ -303,25 +371,29 @@ class Loader {
     if (!fn->is_table()) fail(fn, "F", "expected a table [F]");
     for (auto&& [k, v] : *fn->as_table()) {
       std::string key = "F.\"" + std::string(k.str()) + "\"";
-      auto l = labels_of(m, std::string(k.str()), &v, key, {4, 6});
+      auto l = f_key_labels(labels_of(m, std::string(k.str()), &v, key, {4, 6}));
       int line = static_cast<int>(v.source().begin.line);
+      const bool rr = conv_.rows_are_right();  // printed rows are the channels f of b x c
       if (l.size() == 6) {
+        // One entry: e (channel of a x b) and f (channel of b x c) are named by f_indices whatever the layout.
         put_f(m, {l[0], l[1], l[2], l[3], l[4], l[5]}, value(v, key, m.field), line, &v, key);
         continue;
       }
       auto rows = m.left_channels(l[0], l[1], l[2], l[3]);
       auto cols = m.right_channels(l[0], l[1], l[2], l[3]);
+      if (rr) std::swap(rows, cols);
       if (rows.empty() || cols.empty())
         fail(&v, key, "F^{abc}_d is not admissible under the fusion rules (no fusion tree a b c -> d)");
       if (rows.size() != cols.size())
         fail(&v, key, fmt::format("the fusion rules give {} left-associated and {} right-associated trees, so "
                                   "F cannot be square: check the fusion rules",
                                   rows.size(), cols.size()));
-      std::string shape = fmt::format("a {}x{} matrix (rows e = {}, columns f = {})", rows.size(), cols.size(),
-                                      channel_names(m, rows), channel_names(m, cols));
+      std::string shape = fmt::format("a {}x{} matrix (rows {} = {}, columns {} = {})", rows.size(), cols.size(),
+                                      rr ? "f" : "e", channel_names(m, rows), rr ? "e" : "f", channel_names(m, cols));
       if (!v.is_array()) {
         if (rows.size() == 1) {
-          put_f(m, {l[0], l[1], l[2], l[3], rows[0], cols[0]}, value(v, key, m.field), line, &v, key);
+          put_f(m, {l[0], l[1], l[2], l[3], rr ? cols[0] : rows[0], rr ? rows[0] : cols[0]},
+                value(v, key, m.field), line, &v, key);
           continue;
         }
         fail(&v, key, "expected " + shape);
@@ -333,8 +405,8 @@ class Loader {
         if (!row.is_array() || row.as_array()->size() != cols.size()) fail(&row, key, "expected " + shape);
         for (size_t j = 0; j < cols.size(); ++j) {
           const toml::node& e = *row.as_array()->get(j);
-          put_f(m, {l[0], l[1], l[2], l[3], rows[i], cols[j]}, value(e, key, m.field),
-                static_cast<int>(e.source().begin.line), &e, key);
+          put_f(m, {l[0], l[1], l[2], l[3], rr ? cols[j] : rows[i], rr ? rows[i] : cols[j]},
+                value(e, key, m.field), static_cast<int>(e.source().begin.line), &e, key);
         }
       }
     }
