@@ -5,6 +5,7 @@
 
 #include <algorithm>
 #include <map>
+#include <numeric>
 #include <optional>
 
 #include "compare_gauge.hpp"
@@ -269,12 +270,54 @@ bool compare_in_field(const Side& A, const Side& B, const CompareOptions& opt, C
   return false;
 }
 
+// B against every Galois conjugate of a other than the identity (and the mirror when it was tried): true and r
+// filled with the first conjugate found equivalent. Conjugation keeps the label count, R presence and fusion
+// rules, so a difference there is not retried.
+bool compare_galois(const Model& a, const Model& b, const CompareOptions& opt, CompareResult* r) {
+  const std::string& inv = r->differs.invariant;
+  if (inv == "label count" || inv == "braiding" || inv == "fusion rules") return false;
+  const long N = static_cast<long>(a.field->conductor());
+  const int m = a.field->radicand_count();
+  const long embeddings = m >= 20 ? -1 : static_cast<long>(euler_phi(a.field->conductor())) << m;
+  if (embeddings < 0 || embeddings > opt.max_galois) {
+    r->notes.push_back(fmt::format("Galois conjugates of A not tried: its field has more than {} embeddings",
+                                   opt.max_galois));
+    return false;
+  }
+  for (long k = 1; k <= std::max(N - 1, 1L); ++k) {
+    if (std::gcd(k, N) != 1) continue;
+    for (RadicalMask s = 0; s < (RadicalMask(1) << m); ++s) {
+      if (s == 0 && (k == 1 || (opt.try_mirror && k == N - 1))) continue;
+      Model g = galois_model(a, k, s);
+      FieldPtr f = common_field(g, b);
+      std::vector<std::string> scratch;
+      Side G = prepare(move_to_field(g, f), &scratch, "the conjugate of A");
+      Side B = prepare(move_to_field(b, f), &scratch, "B");
+      CompareResult t;
+      ++r->galois_tried;
+      bool ok = compare_in_field(G, B, opt, &t);
+      r->relabelings_tried += t.relabelings_tried;
+      if (!ok) continue;
+      r->relabeling = std::move(t.relabeling);
+      r->gauge = std::move(t.gauge);
+      r->gauge_explicit = t.gauge_explicit;
+      r->gauge_note = std::move(t.gauge_note);
+      r->galois_k = k;
+      r->galois_signs.clear();
+      for (int j = 0; j < m; ++j) r->galois_signs.push_back(s & (RadicalMask(1) << j) ? -1 : 1);
+      return true;
+    }
+  }
+  return false;
+}
+
 }  // namespace
 
 const char* verdict_name(CompareVerdict v) {
   switch (v) {
     case CompareVerdict::kEquivalent: return "equivalent";
     case CompareVerdict::kEquivalentToMirror: return "equivalent-to-mirror";
+    case CompareVerdict::kEquivalentToGaloisConjugate: return "equivalent-to-galois-conjugate";
     default: return "not-equivalent";
   }
 }
@@ -304,17 +347,23 @@ CompareResult compare_models(const Model& a, const Model& b, const CompareOption
     r.verdict = CompareVerdict::kEquivalent;
     return r;
   }
-  if (!opt.try_mirror) return r;
   CompareDiff direct = r.differs;
-  long tried = r.relabelings_tried;
-  Side Ac = prepare(mirror_model(A.m), &r.notes, "the mirror of A");
-  if (compare_in_field(Ac, B, opt, &r)) {
-    r.verdict = CompareVerdict::kEquivalentToMirror;
-    r.differs = {};
-  } else {
+  if (opt.try_mirror) {
+    long tried = r.relabelings_tried;
+    Side Ac = prepare(mirror_model(A.m), &r.notes, "the mirror of A");
+    const bool mirror = compare_in_field(Ac, B, opt, &r);
+    r.relabelings_tried += tried;
+    if (mirror) {
+      r.verdict = CompareVerdict::kEquivalentToMirror;
+      r.differs = {};
+      return r;
+    }
     r.differs = direct;
   }
-  r.relabelings_tried += tried;
+  if (opt.try_galois && compare_galois(a, b, opt, &r)) {
+    r.verdict = CompareVerdict::kEquivalentToGaloisConjugate;
+    r.differs = {};
+  }
   return r;
 }
 
