@@ -9,6 +9,7 @@
 #include <optional>
 
 #include "compare_gauge.hpp"
+#include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/model/ribbon.hpp"
 #include "zetabraid/model/transform.hpp"
@@ -270,6 +271,39 @@ bool compare_in_field(const Side& A, const Side& B, const CompareOptions& opt, C
   return false;
 }
 
+// d_a^2 = x_a x_{a*} = 1/([F^{a a* a}_a]_{11} [F^{a* a a*}_{a*}]_{11}) for every label: gauge invariant
+// (model/ribbon.hpp) and a rational function of F, so the conjugate's value is the conjugate of A's. Empty when
+// some entry is missing.
+std::vector<Scalar> dim_squares(const Model& m) {
+  std::vector<Scalar> out;
+  for (int a = 0; a < m.label_count(); ++a) {
+    const int ad = m.dual(a);
+    if (ad < 0) return {};
+    const Scalar* p = m.f_symbol(a, ad, a, a, 0, 0);
+    const Scalar* q = m.f_symbol(ad, a, ad, ad, 0, 0);
+    if (!p || !q) return {};
+    out.push_back((*p * *q).inverse());
+  }
+  return out;
+}
+
+// False only when proved: some label of A has, under the embedding (k, signs), a d^2 whose enclosure is disjoint
+// from that of every d^2 of B (then no relabelling and gauge can map that conjugate onto B).
+bool dims_may_match(const std::vector<Scalar>& da, const std::vector<Scalar>& db, long k, RadicalMask signs) {
+  if (da.empty() || db.empty()) return true;
+  const long prec = 64;
+  std::vector<AcbT> bb(db.size());
+  for (size_t j = 0; j < db.size(); ++j) db[j].ball(bb[j].get(), prec);
+  for (const Scalar& x : da) {
+    AcbT xa;
+    x.ball_at(xa.get(), prec, k, signs);
+    bool any = false;
+    for (const AcbT& y : bb) any = any || acb_overlaps(xa.get(), y.get());
+    if (!any) return false;
+  }
+  return true;
+}
+
 // B against every Galois conjugate of a other than the identity (and the mirror when it was tried): true and r
 // filled with the first conjugate found equivalent. Conjugation keeps the label count, R presence and fusion
 // rules, so a difference there is not retried.
@@ -284,10 +318,15 @@ bool compare_galois(const Model& a, const Model& b, const CompareOptions& opt, C
                                    opt.max_galois));
     return false;
   }
+  const std::vector<Scalar> da = dim_squares(a), db = dim_squares(b);
   for (long k = 1; k <= std::max(N - 1, 1L); ++k) {
     if (std::gcd(k, N) != 1) continue;
     for (RadicalMask s = 0; s < (RadicalMask(1) << m); ++s) {
       if (s == 0 && (k == 1 || (opt.try_mirror && k == N - 1))) continue;
+      if (!dims_may_match(da, db, k, s)) {
+        ++r->galois_excluded;
+        continue;
+      }
       Model g = galois_model(a, k, s);
       FieldPtr f = common_field(g, b);
       std::vector<std::string> scratch;

@@ -81,9 +81,14 @@ TEST_CASE("mirror copies: Fibonacci's mirror is not equivalent to it, the twists
   CHECK(r.verdict == CompareVerdict::kEquivalentToMirror);
   CompareOptions no_mirror;
   no_mirror.try_mirror = false;
+  no_mirror.try_galois = false;  // the mirror is also the Galois conjugate zeta -> zeta^-1 (k = 4 here)
   CompareResult d = compare_models(fib, c, no_mirror);
   CHECK(d.verdict == CompareVerdict::kNotEquivalent);
   CHECK(d.differs.invariant == "twists");
+  no_mirror.try_galois = true;
+  d = compare_models(fib, c, no_mirror);
+  CHECK(d.verdict == CompareVerdict::kEquivalentToGaloisConjugate);
+  CHECK(d.galois_k == 4);
   // Toric code is its own mirror (all data real): equivalent directly.
   Model tc = bundled("toric_code");
   CHECK(compare_models(tc, mirror_model(tc)).verdict == CompareVerdict::kEquivalent);
@@ -178,6 +183,10 @@ TEST_CASE("negative control: a gauge copy with one F entry negated is not equiva
     CompareResult r = compare_models(m, g);
     CHECK(r.verdict == CompareVerdict::kNotEquivalent);
     CHECK(r.galois_tried > 0);
+    // Fibonacci: zeta -> zeta^2, zeta^3 send d_t^2 = phi^2 to (1 - phi)^2, which no label of B has: those 4
+    // embeddings are excluded by enclosures before the full test; (1, -) and (4, -) keep d^2 and are tried.
+    if (cap_name == "fibonacci") CHECK(r.galois_excluded == 4);
+    if (cap_name == "fibonacci") CHECK(r.galois_tried == 2);
     CHECK(r.differs.invariant == "loop product");
     CHECK_FALSE(r.differs.loop.empty());
     CHECK(r.differs.value_b == "-1");

@@ -26,7 +26,9 @@ struct CompareOptions {
   bool try_mirror = true;        ///< also compare B with the conjugate of A when A and B are not equivalent
   long max_relabelings = 20000;  ///< more candidate relabellings than this: ResourceError
   /// When neither A nor its mirror is equivalent to B: compare B with each Galois conjugate of A
-  /// (transform.hpp, galois_model), one per embedding (k, signs) of A's field, k ascending, then signs.
+  /// (transform.hpp, galois_model), one per embedding (k, signs) of A's field, k ascending, then signs. The
+  /// identity is skipped, and the mirror (k = N-1, signs 0) when try_mirror already tried it; so without
+  /// try_mirror the mirror can still be found here, as the conjugate k = N-1.
   bool try_galois = true;
   long max_galois = 256;  ///< A's field has more embeddings than this: the conjugates are skipped (with a note)
 };
@@ -64,7 +66,8 @@ struct CompareResult {
   /// gauge then take that conjugate (labels as A's) to B. galois_signs has one entry +1/-1 per radicand of A.
   long galois_k = 1;
   std::vector<int> galois_signs;
-  long galois_tried = 0;  ///< Galois conjugates compared
+  long galois_tried = 0;     ///< Galois conjugates compared in full
+  long galois_excluded = 0;  ///< conjugates excluded before: some d_a^2 proved (by enclosures) to match no d_b^2
   std::vector<std::string> notes;
 };
 
