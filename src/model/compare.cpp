@@ -271,34 +271,57 @@ bool compare_in_field(const Side& A, const Side& B, const CompareOptions& opt, C
   return false;
 }
 
-// d_a^2 = x_a x_{a*} = 1/([F^{a a* a}_a]_{11} [F^{a* a a*}_{a*}]_{11}) for every label: gauge invariant
-// (model/ribbon.hpp) and a rational function of F, so the conjugate's value is the conjugate of A's. Empty when
-// some entry is missing.
-std::vector<Scalar> dim_squares(const Model& m) {
-  std::vector<Scalar> out;
+// Per label a, values that every gauge leaves unchanged and that are rational functions of F and R (so the
+// conjugate's values are the conjugates of A's): d_a^2 = x_a x_{a*} = 1/([F^{a a* a}_a]_{11} [F^{a* a a*}_{a*}]_{11})
+// (model/ribbon.hpp) first, then R^{aa}_c for every channel c (u^{aa}_c/u^{aa}_c = 1). Empty when an entry is
+// missing.
+std::vector<std::vector<Scalar>> label_invariants(const Model& m) {
+  std::vector<std::vector<Scalar>> out;
   for (int a = 0; a < m.label_count(); ++a) {
     const int ad = m.dual(a);
     if (ad < 0) return {};
     const Scalar* p = m.f_symbol(a, ad, a, a, 0, 0);
     const Scalar* q = m.f_symbol(ad, a, ad, ad, 0, 0);
     if (!p || !q) return {};
-    out.push_back((*p * *q).inverse());
+    std::vector<Scalar> v{(*p * *q).inverse()};
+    if (m.has_r)
+      for (int c : m.channels(a, a)) {
+        const Scalar* r = m.r_symbol(a, a, c);
+        if (!r) return {};
+        v.push_back(*r);
+      }
+    out.push_back(std::move(v));
   }
   return out;
 }
 
-// False only when proved: some label of A has, under the embedding (k, signs), a d^2 whose enclosure is disjoint
-// from that of every d^2 of B (then no relabelling and gauge can map that conjugate onto B).
-bool dims_may_match(const std::vector<Scalar>& da, const std::vector<Scalar>& db, long k, RadicalMask signs) {
-  if (da.empty() || db.empty()) return true;
+// False only when proved: some label of A has, under the embedding (k, signs), invariants whose enclosures cannot
+// be those of any label of B (d^2 disjoint, or an R^{aa}_c disjoint from every R^{bb}_c'); then no relabelling and
+// gauge can map that conjugate onto B.
+bool invariants_may_match(const std::vector<std::vector<Scalar>>& ia, const std::vector<std::vector<Scalar>>& ib,
+                          long k, RadicalMask signs) {
+  if (ia.empty() || ib.empty()) return true;
   const long prec = 64;
-  std::vector<AcbT> bb(db.size());
-  for (size_t j = 0; j < db.size(); ++j) db[j].ball(bb[j].get(), prec);
-  for (const Scalar& x : da) {
-    AcbT xa;
-    x.ball_at(xa.get(), prec, k, signs);
+  auto balls = [&](const std::vector<Scalar>& v, bool at) {
+    std::vector<AcbT> out(v.size());
+    for (size_t j = 0; j < v.size(); ++j) at ? v[j].ball_at(out[j].get(), prec, k, signs) : v[j].ball(out[j].get(), prec);
+    return out;
+  };
+  std::vector<std::vector<AcbT>> bb;
+  for (const auto& v : ib) bb.push_back(balls(v, false));
+  for (const auto& v : ia) {
+    std::vector<AcbT> x = balls(v, true);
     bool any = false;
-    for (const AcbT& y : bb) any = any || acb_overlaps(xa.get(), y.get());
+    for (const auto& y : bb) {
+      if (any || y.size() != x.size() || !acb_overlaps(x[0].get(), y[0].get())) continue;
+      bool all = true;
+      for (size_t i = 1; i < x.size() && all; ++i) {
+        bool hit = false;
+        for (size_t j = 1; j < y.size() && !hit; ++j) hit = acb_overlaps(x[i].get(), y[j].get());
+        all = hit;
+      }
+      any = all;
+    }
     if (!any) return false;
   }
   return true;
@@ -318,12 +341,12 @@ bool compare_galois(const Model& a, const Model& b, const CompareOptions& opt, C
                                    opt.max_galois));
     return false;
   }
-  const std::vector<Scalar> da = dim_squares(a), db = dim_squares(b);
+  const std::vector<std::vector<Scalar>> ia = label_invariants(a), ib = label_invariants(b);
   for (long k = 1; k <= std::max(N - 1, 1L); ++k) {
     if (std::gcd(k, N) != 1) continue;
     for (RadicalMask s = 0; s < (RadicalMask(1) << m); ++s) {
       if (s == 0 && (k == 1 || (opt.try_mirror && k == N - 1))) continue;
-      if (!dims_may_match(da, db, k, s)) {
+      if (opt.galois_prefilter && !invariants_may_match(ia, ib, k, s)) {
         ++r->galois_excluded;
         continue;
       }

@@ -30,6 +30,9 @@ struct CompareOptions {
   /// identity is skipped, and the mirror (k = N-1, signs 0) when try_mirror already tried it; so without
   /// try_mirror the mirror can still be found here, as the conjugate k = N-1.
   bool try_galois = true;
+  /// Exclude conjugates whose gauge invariants d_a^2, R^{aa}_c provably match no label of B (enclosures) before
+  /// the full test; the verdict is the same without it (tests compare both).
+  bool galois_prefilter = true;
   long max_galois = 256;  ///< A's field has more embeddings than this: the conjugates are skipped (with a note)
 };
 
@@ -67,7 +70,9 @@ struct CompareResult {
   long galois_k = 1;
   std::vector<int> galois_signs;
   long galois_tried = 0;     ///< Galois conjugates compared in full
-  long galois_excluded = 0;  ///< conjugates excluded before: some d_a^2 proved (by enclosures) to match no d_b^2
+  /// Conjugates excluded before the full test: the enclosures prove that some label's d_a^2 or R^{aa}_c (gauge
+  /// invariants) match those of no label of B.
+  long galois_excluded = 0;
   std::vector<std::string> notes;
 };
 
