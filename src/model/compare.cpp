@@ -350,14 +350,21 @@ bool compare_galois(const Model& a, const Model& b, const CompareOptions& opt, C
         ++r->galois_excluded;
         continue;
       }
-      Model g = galois_model(a, k, s);
-      FieldPtr f = common_field(g, b);
-      std::vector<std::string> scratch;
-      Side G = prepare(move_to_field(g, f), &scratch, "the conjugate of A");
-      Side B = prepare(move_to_field(b, f), &scratch, "B");
       CompareResult t;
       ++r->galois_tried;
-      bool ok = compare_in_field(G, B, opt, &t);
+      bool ok = false;
+      try {
+        Model g = galois_model(a, k, s);
+        FieldPtr f = common_field(g, b);
+        std::vector<std::string> scratch;
+        Side G = prepare(move_to_field(g, f), &scratch, "the conjugate of A");
+        Side B = prepare(move_to_field(b, f), &scratch, "B");
+        ok = compare_in_field(G, B, opt, &t);
+      } catch (const ResourceError& e) {
+        // A limit hit by one conjugate (e.g. a larger common field) ends the search but not the comparison.
+        r->notes.push_back(fmt::format("Galois conjugates of A: search stopped at k = {}: {}", k, e.what()));
+        return false;
+      }
       r->relabelings_tried += t.relabelings_tried;
       if (!ok) continue;
       r->relabeling = std::move(t.relabeling);

@@ -235,6 +235,8 @@ std::string compare_json(const CompareResult& r, const std::string& path_a, cons
     j["differs"] = d;
   }
   j["relabelings_tried"] = r.relabelings_tried;
+  if (r.galois_tried || r.galois_excluded)
+    j["galois_conjugates"] = {{"tried", r.galois_tried}, {"excluded_by_invariants", r.galois_excluded}};
   j["notes"] = r.notes;
   j["exact"] = true;
   return j.dump();

@@ -237,6 +237,7 @@ TEST_CASE("model compare on the command line: exit codes, JSON keys, --out") {
   CHECK(j["verdict"] == "equivalent-to-galois-conjugate");
   CHECK(j["galois"]["k"] == 2);
   CHECK(j["galois"]["signs"] == nlohmann::json::array({1}));
+  CHECK(j["galois_conjugates"]["tried"] == 1);
   // A conjugate written by model transform --galois passes model check and compares as one.
   REQUIRE(zbtest::run(zbtest::cli() + " model transform " + fib + " --galois 3 --gauge-seed 2 -o " + b).status == 0);
   CHECK(zbtest::run(zbtest::cli() + " model check " + b).status == 0);
