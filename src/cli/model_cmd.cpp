@@ -3,11 +3,13 @@
 #include <unistd.h>
 
 #include <chrono>
+#include <numeric>
 #include <optional>
 
 #include "commands.hpp"
 #include "zetabraid/detail/parallel.hpp"
 #include "zetabraid/error.hpp"
+#include "zetabraid/io/input_file.hpp"
 #include "zetabraid/model/families.hpp"
 #include "zetabraid/model/load.hpp"
 #include "zetabraid/model/render.hpp"
@@ -49,10 +51,12 @@ int run_check(const std::string& path, bool as_json, std::optional<int> threads)
   return rep.ok ? kExitOk : kExitClaimFalse;
 }
 
-int run_compare(const std::string& pa, const std::string& pb, bool as_json, bool mirror, const std::string& out) {
+int run_compare(const std::string& pa, const std::string& pb, bool as_json, bool mirror, bool galois,
+                const std::string& out) {
   Model a = load_model(pa), b = load_model(pb);
   CompareOptions opt;
   opt.try_mirror = mirror;
+  opt.try_galois = galois;
   CompareResult r = compare_models(a, b, opt);
   std::string json = compare_json(r, pa, pb);
   if (!out.empty()) write_file_atomic(out, json + "\n");
@@ -61,12 +65,32 @@ int run_compare(const std::string& pa, const std::string& pb, bool as_json, bool
 }
 
 struct TransformOpts {
-  std::string file, out = "-", relabel;
+  std::string file, out = "-", relabel, galois_signs;
   std::uint64_t seed = 0;
-  bool mirror = false;
+  long galois = 1;
+  bool mirror = false, invert_f = false, transpose_f = false;
 };
 
-int run_transform(const TransformOpts& o, bool gauge) {
+// --galois K [--galois-signs "+-..."]: checked here so that bad values are input errors.
+Model apply_galois_option(const Model& m, const TransformOpts& o, std::string* what) {
+  const long n = static_cast<long>(m.field->conductor());
+  if (std::gcd(((o.galois % n) + n) % n, n) != 1)
+    throw InputError(fmt::format("--galois: {} is not prime to the conductor {} of the model's field", o.galois, n));
+  const int nrad = m.field->radicand_count();
+  RadicalMask signs = 0;
+  if (!o.galois_signs.empty()) {
+    if (static_cast<int>(o.galois_signs.size()) != nrad || o.galois_signs.find_first_not_of("+-") != std::string::npos)
+      throw InputError(fmt::format("--galois-signs: expected one '+' or '-' per square-root radicand ({} here), found "
+                                   "\"{}\"", nrad, printable(o.galois_signs)));
+    for (int j = 0; j < nrad; ++j)
+      if (o.galois_signs[static_cast<size_t>(j)] == '-') signs |= RadicalMask(1) << j;
+  }
+  *what += fmt::format(" --galois {}", o.galois);
+  if (!o.galois_signs.empty()) *what += fmt::format(" --galois-signs {}", o.galois_signs);
+  return galois_model(m, o.galois, signs);
+}
+
+int run_transform(const TransformOpts& o, bool gauge, bool galois) {
   Model m = load_model(o.file);
   std::string what;
   if (gauge) {
@@ -84,7 +108,17 @@ int run_transform(const TransformOpts& o, bool gauge) {
     m = mirror_model(m);
     what += " --mirror";
   }
-  if (what.empty()) throw InputError("model transform: give --gauge-seed, --relabel or --mirror");
+  if (!galois && !o.galois_signs.empty()) throw InputError("model transform: --galois-signs needs --galois");
+  if (galois) m = apply_galois_option(m, o, &what);
+  if (o.invert_f || o.transpose_f) {
+    if (o.invert_f) m = invert_f_blocks(m), what += " --invert-f";
+    if (o.transpose_f) m = transpose_f_blocks(m), what += " --transpose-f";
+    fmt::print(stderr, "note: with{}{} the output is generally NOT a consistent model in zetabraid's convention; it is "
+                       "how the data look printed in another convention\n",
+               o.invert_f ? " --invert-f" : "", o.transpose_f ? " --transpose-f" : "");
+  }
+  if (what.empty())
+    throw InputError("model transform: give --gauge-seed, --relabel, --mirror, --galois, --invert-f or --transpose-f");
   m.source = fmt::format("zetabraid model transform{} of {} ({})", what, o.file, m.source);
   write_file_atomic(o.out, model_to_toml(m));
   return kExitOk;
@@ -154,7 +188,7 @@ void add_model_commands(CLI::App& app, Action& action) {
         "compare", "decide exactly whether two model files are the same up to gauge and relabelling (or mirror)");
     struct Opts {
       std::string a, b, out;
-      bool json = false, no_mirror = false;
+      bool json = false, no_mirror = false, no_galois = false;
     };
     auto o = std::make_shared<Opts>();
     cmd->add_option("a", o->a, "model file A")->required();
@@ -162,8 +196,9 @@ void add_model_commands(CLI::App& app, Action& action) {
     cmd->add_flag("--json", o->json, "one JSON object: verdict, relabeling, gauge, differs");
     cmd->add_option("--out", o->out, "also write the JSON result to this file");
     cmd->add_flag("--no-mirror", o->no_mirror, "do not compare B with the mirror (complex conjugate) of A");
+    cmd->add_flag("--no-galois", o->no_galois, "do not compare B with the Galois conjugates of A");
     cmd->callback([o, &action] {
-      action = [o] { return run_compare(o->a, o->b, o->json, !o->no_mirror, o->out); };
+      action = [o] { return run_compare(o->a, o->b, o->json, !o->no_mirror, !o->no_galois, o->out); };
     });
   }
   {
@@ -173,10 +208,18 @@ void add_model_commands(CLI::App& app, Action& action) {
     cmd->add_option("--gauge-seed", o->seed, "apply a random exact gauge (small rationals times roots of unity)");
     cmd->add_option("--relabel", o->relabel, "\"a:b,c:d\": label a is called b afterwards");
     cmd->add_flag("--mirror", o->mirror, "complex-conjugate every F and R");
+    cmd->add_option("--galois", o->galois,
+                    "apply the Galois automorphism zeta -> zeta^K (K prime to the conductor) to every F and R");
+    cmd->add_option("--galois-signs", o->galois_signs,
+                    "with --galois: '+' or '-' per square-root radicand, sqrt(d_j) -> +-sqrt(sigma_K(d_j)) (default all +)");
+    cmd->add_flag("--invert-f", o->invert_f,
+                  "replace every F block by its inverse (output generally NOT a valid model in this convention)");
+    cmd->add_flag("--transpose-f", o->transpose_f,
+                  "replace every F block by its transpose (output generally NOT a valid model in this convention)");
     cmd->add_option("--out,-o", o->out, "output file (default: standard output)");
     cmd->callback([o, cmd, &action] {
-      bool gauge = cmd->count("--gauge-seed") > 0;
-      action = [o, gauge] { return run_transform(*o, gauge); };
+      bool gauge = cmd->count("--gauge-seed") > 0, galois = cmd->count("--galois") > 0;
+      action = [o, gauge, galois] { return run_transform(*o, gauge, galois); };
     });
   }
   {

@@ -5,9 +5,11 @@
 
 #include <algorithm>
 #include <map>
+#include <numeric>
 #include <optional>
 
 #include "compare_gauge.hpp"
+#include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/model/ribbon.hpp"
 #include "zetabraid/model/transform.hpp"
@@ -269,12 +271,122 @@ bool compare_in_field(const Side& A, const Side& B, const CompareOptions& opt, C
   return false;
 }
 
+// Per label a, values that every gauge leaves unchanged and that are rational functions of F and R (so the
+// conjugate's values are the conjugates of A's): d_a^2 = x_a x_{a*} = 1/([F^{a a* a}_a]_{11} [F^{a* a a*}_{a*}]_{11})
+// (model/ribbon.hpp) first, then R^{aa}_c for every channel c (u^{aa}_c/u^{aa}_c = 1). Empty when an entry is
+// missing.
+std::vector<std::vector<Scalar>> label_invariants(const Model& m) {
+  std::vector<std::vector<Scalar>> out;
+  for (int a = 0; a < m.label_count(); ++a) {
+    const int ad = m.dual(a);
+    if (ad < 0) return {};
+    const Scalar* p = m.f_symbol(a, ad, a, a, 0, 0);
+    const Scalar* q = m.f_symbol(ad, a, ad, ad, 0, 0);
+    if (!p || !q) return {};
+    std::vector<Scalar> v{(*p * *q).inverse()};
+    if (m.has_r)
+      for (int c : m.channels(a, a)) {
+        const Scalar* r = m.r_symbol(a, a, c);
+        if (!r) return {};
+        v.push_back(*r);
+      }
+    out.push_back(std::move(v));
+  }
+  return out;
+}
+
+// False only when proved: some label of A has, under the embedding (k, signs), invariants whose enclosures cannot
+// be those of any label of B (d^2 disjoint, or an R^{aa}_c disjoint from every R^{bb}_c'); then no relabelling and
+// gauge can map that conjugate onto B.
+bool invariants_may_match(const std::vector<std::vector<Scalar>>& ia, const std::vector<std::vector<Scalar>>& ib,
+                          long k, RadicalMask signs) {
+  if (ia.empty() || ib.empty()) return true;
+  const long prec = 64;
+  auto balls = [&](const std::vector<Scalar>& v, bool at) {
+    std::vector<AcbT> out(v.size());
+    for (size_t j = 0; j < v.size(); ++j) at ? v[j].ball_at(out[j].get(), prec, k, signs) : v[j].ball(out[j].get(), prec);
+    return out;
+  };
+  std::vector<std::vector<AcbT>> bb;
+  for (const auto& v : ib) bb.push_back(balls(v, false));
+  for (const auto& v : ia) {
+    std::vector<AcbT> x = balls(v, true);
+    bool any = false;
+    for (const auto& y : bb) {
+      if (any || y.size() != x.size() || !acb_overlaps(x[0].get(), y[0].get())) continue;
+      bool all = true;
+      for (size_t i = 1; i < x.size() && all; ++i) {
+        bool hit = false;
+        for (size_t j = 1; j < y.size() && !hit; ++j) hit = acb_overlaps(x[i].get(), y[j].get());
+        all = hit;
+      }
+      any = all;
+    }
+    if (!any) return false;
+  }
+  return true;
+}
+
+// B against every Galois conjugate of a other than the identity (and the mirror when it was tried): true and r
+// filled with the first conjugate found equivalent. Conjugation keeps the label count, R presence and fusion
+// rules, so a difference there is not retried.
+bool compare_galois(const Model& a, const Model& b, const CompareOptions& opt, CompareResult* r) {
+  const std::string& inv = r->differs.invariant;
+  if (inv == "label count" || inv == "braiding" || inv == "fusion rules") return false;
+  const long N = static_cast<long>(a.field->conductor());
+  const int m = a.field->radicand_count();
+  const long embeddings = m >= 20 ? -1 : static_cast<long>(euler_phi(a.field->conductor())) << m;
+  if (embeddings < 0 || embeddings > opt.max_galois) {
+    r->notes.push_back(fmt::format("Galois conjugates of A not tried: its field has more than {} embeddings",
+                                   opt.max_galois));
+    return false;
+  }
+  const std::vector<std::vector<Scalar>> ia = label_invariants(a), ib = label_invariants(b);
+  for (long k = 1; k <= std::max(N - 1, 1L); ++k) {
+    if (std::gcd(k, N) != 1) continue;
+    for (RadicalMask s = 0; s < (RadicalMask(1) << m); ++s) {
+      if (s == 0 && (k == 1 || (opt.try_mirror && k == N - 1))) continue;
+      if (opt.galois_prefilter && !invariants_may_match(ia, ib, k, s)) {
+        ++r->galois_excluded;
+        continue;
+      }
+      CompareResult t;
+      ++r->galois_tried;
+      bool ok = false;
+      try {
+        Model g = galois_model(a, k, s);
+        FieldPtr f = common_field(g, b);
+        std::vector<std::string> scratch;
+        Side G = prepare(move_to_field(g, f), &scratch, "the conjugate of A");
+        Side B = prepare(move_to_field(b, f), &scratch, "B");
+        ok = compare_in_field(G, B, opt, &t);
+      } catch (const ResourceError& e) {
+        // A limit hit by one conjugate (e.g. a larger common field) ends the search but not the comparison.
+        r->notes.push_back(fmt::format("Galois conjugates of A: search stopped at k = {}: {}", k, e.what()));
+        return false;
+      }
+      r->relabelings_tried += t.relabelings_tried;
+      if (!ok) continue;
+      r->relabeling = std::move(t.relabeling);
+      r->gauge = std::move(t.gauge);
+      r->gauge_explicit = t.gauge_explicit;
+      r->gauge_note = std::move(t.gauge_note);
+      r->galois_k = k;
+      r->galois_signs.clear();
+      for (int j = 0; j < m; ++j) r->galois_signs.push_back(s & (RadicalMask(1) << j) ? -1 : 1);
+      return true;
+    }
+  }
+  return false;
+}
+
 }  // namespace
 
 const char* verdict_name(CompareVerdict v) {
   switch (v) {
     case CompareVerdict::kEquivalent: return "equivalent";
     case CompareVerdict::kEquivalentToMirror: return "equivalent-to-mirror";
+    case CompareVerdict::kEquivalentToGaloisConjugate: return "equivalent-to-galois-conjugate";
     default: return "not-equivalent";
   }
 }
@@ -304,17 +416,23 @@ CompareResult compare_models(const Model& a, const Model& b, const CompareOption
     r.verdict = CompareVerdict::kEquivalent;
     return r;
   }
-  if (!opt.try_mirror) return r;
   CompareDiff direct = r.differs;
-  long tried = r.relabelings_tried;
-  Side Ac = prepare(mirror_model(A.m), &r.notes, "the mirror of A");
-  if (compare_in_field(Ac, B, opt, &r)) {
-    r.verdict = CompareVerdict::kEquivalentToMirror;
-    r.differs = {};
-  } else {
+  if (opt.try_mirror) {
+    long tried = r.relabelings_tried;
+    Side Ac = prepare(mirror_model(A.m), &r.notes, "the mirror of A");
+    const bool mirror = compare_in_field(Ac, B, opt, &r);
+    r.relabelings_tried += tried;
+    if (mirror) {
+      r.verdict = CompareVerdict::kEquivalentToMirror;
+      r.differs = {};
+      return r;
+    }
     r.differs = direct;
   }
-  r.relabelings_tried += tried;
+  if (opt.try_galois && compare_galois(a, b, opt, &r)) {
+    r.verdict = CompareVerdict::kEquivalentToGaloisConjugate;
+    r.differs = {};
+  }
   return r;
 }
 

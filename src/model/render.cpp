@@ -222,6 +222,8 @@ std::string compare_json(const CompareResult& r, const std::string& path_a, cons
     for (const GaugeValue& v : r.gauge) g.push_back({{"vertex", v.vertex}, {"u", v.value}});
     if (r.gauge_explicit) j["gauge"] = g;
     if (!r.gauge_note.empty()) j["gauge_note"] = r.gauge_note;
+    if (r.verdict == CompareVerdict::kEquivalentToGaloisConjugate)
+      j["galois"] = {{"k", r.galois_k}, {"signs", r.galois_signs}};
   } else {
     ojson d{{"invariant", r.differs.invariant}, {"detail", r.differs.detail}, {"a", r.differs.value_a},
             {"b", r.differs.value_b}};
@@ -233,6 +235,8 @@ std::string compare_json(const CompareResult& r, const std::string& path_a, cons
     j["differs"] = d;
   }
   j["relabelings_tried"] = r.relabelings_tried;
+  if (r.galois_tried || r.galois_excluded)
+    j["galois_conjugates"] = {{"tried", r.galois_tried}, {"excluded_by_invariants", r.galois_excluded}};
   j["notes"] = r.notes;
   j["exact"] = true;
   return j.dump();
@@ -242,6 +246,14 @@ std::string compare_text(const CompareResult& r, const std::string& path_a, cons
   std::string o = fmt::format("A = {}, B = {}: {}\n", printable(path_a), printable(path_b), verdict_name(r.verdict));
   if (r.verdict == CompareVerdict::kEquivalentToMirror)
     o += "  B is gauge equivalent to the complex conjugate (mirror) of A, not to A\n";
+  if (r.verdict == CompareVerdict::kEquivalentToGaloisConjugate) {
+    std::string signs;
+    for (size_t j = 0; j < r.galois_signs.size(); ++j)
+      signs += fmt::format("{}{}", j ? ", " : "", r.galois_signs[j] > 0 ? "+" : "-");
+    o += fmt::format("  B is gauge equivalent to the Galois conjugate of A under zeta -> zeta^{}{}, not to A (nor to "
+                     "its mirror); relabelling and gauge below take that conjugate to B\n",
+                     r.galois_k, signs.empty() ? "" : ", sqrt(d_j) -> (" + signs + ") sqrt(sigma(d_j))");
+  }
   if (r.verdict != CompareVerdict::kNotEquivalent) {
     std::string rl;
     for (size_t a = 0; a < r.relabeling.size(); ++a)

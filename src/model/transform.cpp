@@ -10,6 +10,7 @@
 #include "zetabraid/detail/raii.hpp"
 #include "zetabraid/error.hpp"
 #include "zetabraid/io/input_file.hpp"
+#include "zetabraid/linalg/matrix.hpp"
 
 namespace zb {
 
@@ -172,6 +173,86 @@ Model mirror_model(const Model& m) {
   Model out = map_model(m, m.field, identity(m.label_count()), m.labels, conj, conj);
   out.name = "mirror of " + m.name;
   return out;
+}
+
+Model galois_model(const Model& m, long k, RadicalMask signs) {
+  const unsigned long N = m.field->conductor();
+  const long n = static_cast<long>(N);
+  const long km = ((k % n) + n) % n;
+  if (std::gcd(km, n) != 1 && N != 1)
+    throw MathError(fmt::format("galois_model: k = {} is not prime to the conductor {}", k, N));
+  const int nrad = m.field->radicand_count();
+  if (nrad < 64 && (signs >> nrad) != 0)
+    throw MathError(fmt::format("galois_model: sign mask {} has bits past the {} radicands", signs, nrad));
+  // sigma_k(d_j) is real; a negative one needs i for its principal root.
+  bool negative = false;
+  for (int j = 0; j < nrad; ++j) negative = negative || m.field->conjugate_radicand(j, km).sign < 0;
+  const unsigned long M = negative && N % 4 != 0 ? std::lcm(N, 4UL) : N;
+  const unsigned long step = M / N;
+  FieldPtr to = Field::make(M);
+  auto image = [&](const Cyclo& c) { return move_cyclo(N == 1 ? c : c.galois(km), to->cyclotomic(), step); };
+  std::vector<Scalar> roots;
+  for (int j = 0; j < nrad; ++j) {
+    Scalar r = to->sqrt(image(m.field->radicand(j)));
+    roots.push_back(signs & (RadicalMask(1) << j) ? -r : r);
+  }
+  std::map<RadicalMask, Scalar> products;
+  auto product = [&](RadicalMask s) -> const Scalar& {
+    auto it = products.find(s);
+    if (it != products.end()) return it->second;
+    Scalar p(to, 1);
+    for (int j = 0; j < nrad; ++j)
+      if (s & (RadicalMask(1) << j)) p *= roots[static_cast<size_t>(j)];
+    return products.emplace(s, std::move(p)).first->second;
+  };
+  auto map = [&](const auto&, const Scalar& v) {
+    Scalar out(to);
+    for (const auto& [s, c] : v.terms()) out += Scalar(to, image(c)) * product(s);
+    return out;
+  };
+  Model out = map_model(m, to, identity(m.label_count()), m.labels, map, map);
+  out.name = fmt::format("Galois conjugate (k = {}, signs = {}) of {}", km, signs, m.name);
+  out.claims_unitary = m.claims_unitary && signs == 0 && (km == 1 || km == n - 1);
+  return out;
+}
+
+namespace {
+
+// Every square F block replaced by op(block) (rows e, columns f in ascending order); R unchanged.
+template <class Op>
+Model map_f_blocks(const Model& m, Op op, const char* what) {
+  Model out = m;
+  out.clear_symbols();
+  out.claims_unitary = false;
+  m.for_each_f_block([&](const Model::FBlock& b) {
+    const size_t n = b.rows.size();
+    if (b.cols.size() != n)
+      throw MathError(fmt::format("{}: the block F^{{{} {} {}}}_{} is not square", what, b.a, b.b, b.c, b.d));
+    Matrix x(m.field, n, n);
+    for (size_t i = 0; i < n; ++i)
+      for (size_t j = 0; j < n; ++j)
+        if (const Scalar* v = m.f_symbol(b.a, b.b, b.c, b.d, b.rows[i], b.cols[j])) x(i, j) = *v;
+    Matrix y = op(x);
+    for (size_t i = 0; i < n; ++i)
+      for (size_t j = 0; j < n; ++j) {
+        out.f_given.insert({b.a, b.b, b.c, b.d, b.rows[i], b.cols[j]});
+        if (!y(i, j).is_zero()) out.set_f_symbol(b.a, b.b, b.c, b.d, b.rows[i], b.cols[j], y(i, j));
+      }
+  });
+  out.r_given = m.r_given;
+  out.r_line = m.r_line;
+  for (const auto& [k, v] : m.r_symbols()) out.set_r_symbol(k[0], k[1], k[2], v);
+  return out;
+}
+
+}  // namespace
+
+Model invert_f_blocks(const Model& m) {
+  return map_f_blocks(m, [](const Matrix& x) { return x.inverse(); }, "invert_f_blocks");
+}
+
+Model transpose_f_blocks(const Model& m) {
+  return map_f_blocks(m, [](const Matrix& x) { return x.transpose(); }, "transpose_f_blocks");
 }
 
 FieldPtr common_field(const Model& a, const Model& b) {

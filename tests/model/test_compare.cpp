@@ -6,6 +6,7 @@
 #include "support/helpers.hpp"
 #include "zetabraid/model/check.hpp"
 #include "zetabraid/model/compare.hpp"
+#include "zetabraid/model/families.hpp"
 #include "zetabraid/model/load.hpp"
 #include "zetabraid/model/transform.hpp"
 
@@ -80,9 +81,14 @@ TEST_CASE("mirror copies: Fibonacci's mirror is not equivalent to it, the twists
   CHECK(r.verdict == CompareVerdict::kEquivalentToMirror);
   CompareOptions no_mirror;
   no_mirror.try_mirror = false;
+  no_mirror.try_galois = false;  // the mirror is also the Galois conjugate zeta -> zeta^-1 (k = 4 here)
   CompareResult d = compare_models(fib, c, no_mirror);
   CHECK(d.verdict == CompareVerdict::kNotEquivalent);
   CHECK(d.differs.invariant == "twists");
+  no_mirror.try_galois = true;
+  d = compare_models(fib, c, no_mirror);
+  CHECK(d.verdict == CompareVerdict::kEquivalentToGaloisConjugate);
+  CHECK(d.galois_k == 4);
   // Toric code is its own mirror (all data real): equivalent directly.
   Model tc = bundled("toric_code");
   CHECK(compare_models(tc, mirror_model(tc)).verdict == CompareVerdict::kEquivalent);
@@ -94,17 +100,77 @@ TEST_CASE("mirror copies: Fibonacci's mirror is not equivalent to it, the twists
 TEST_CASE("Ising vs SU(2)_2: same fusion rules, different Frobenius-Schur indicator of the spin-1/2 label") {
   // From memory: Ising has nu_sigma = +1, theta_sigma = exp(pi i/8); SU(2)_2 has nu_{1/2} = -1 (model/ribbon.hpp)
   // and theta_{1/2} = exp(3 pi i/8). The indicator is compared before the twist.
-  CompareResult r = compare_models(bundled("ising"), bundled("su2_k2"));
+  CompareOptions direct;
+  direct.try_galois = false;
+  CompareResult r = compare_models(bundled("ising"), bundled("su2_k2"), direct);
   CHECK(r.verdict == CompareVerdict::kNotEquivalent);
   CHECK(r.differs.invariant == "fs_indicators");
   CHECK(r.differs.value_a == "1");
   CHECK(r.differs.value_b == "-1");
   // Ising vs its nu = 3 sibling: also the indicator (Kitaev 2006, Table 1, from memory: kappa = -1 for nu = 3).
-  CHECK(compare_models(bundled("ising"), bundled("ising_nu3")).differs.invariant == "fs_indicators");
+  CHECK(compare_models(bundled("ising"), bundled("ising_nu3"), direct).differs.invariant == "fs_indicators");
+}
+
+TEST_CASE("Galois conjugates: Fibonacci vs Yang-Lee, Ising vs SU(2)_2, conjugates made by galois_model") {
+  // Common practice: Yang-Lee is the Galois conjugate of Fibonacci, phi -> -1/phi; yang_lee.toml was made with
+  // zeta -> zeta^2 of Q(zeta_5), so k = 2 (the first k tried) with the positive root is expected.
+  CompareResult r = compare_models(bundled("fibonacci"), bundled("yang_lee"));
+  CHECK(r.verdict == CompareVerdict::kEquivalentToGaloisConjugate);
+  CHECK(r.galois_k == 2);
+  CHECK(r.galois_signs == std::vector<int>{1});
+  CHECK(r.galois_tried >= 1);
+  CHECK(r.differs.invariant.empty());
+  // Ising vs SU(2)_2 (same fusion rules, d_sigma = sqrt 2 vs -sqrt 2 after conjugation): for a = b the R-symbols
+  // R^{aa}_c are gauge invariant (u^{aa}_c/u^{aa}_c = 1), so a conjugate zeta -> zeta^k must map Ising's
+  // R^{sigma sigma}_1 = zeta^-1, R^{sigma sigma}_psi = zeta^3 (ising.toml, zeta = exp(2 pi i/16)) onto su2_k2.toml's
+  // zeta^5, zeta: -k = 5 and 3k = 1 mod 16 force k = 11. Common practice: SU(2)_2 is a Galois conjugate of Ising.
+  r = compare_models(bundled("ising"), bundled("su2_k2"));
+  CHECK(r.verdict == CompareVerdict::kEquivalentToGaloisConjugate);
+  CHECK(r.galois_k == 11);
+  // A conjugate produced by galois_model, then gauged and relabelled, is found again.
+  Model m = bundled("su2_k3");
+  Model g = galois_model(m, 3, 0);
+  g = apply_gauge(g, random_gauge(g, 8));
+  CompareResult q = compare_models(m, g);
+  CHECK(q.verdict == CompareVerdict::kEquivalentToGaloisConjugate);
+  CHECK(check_model(galois_model(m, q.galois_k, 0)).ok);
+  // Negative controls: rational data are fixed by every conjugation (toric code vs three fermions differ in the
+  // twists), and the F-negated copies of the next test case stay not equivalent after every conjugate was tried.
+  r = compare_models(bundled("toric_code"), bundled("three_fermion"));
+  CHECK(r.verdict == CompareVerdict::kNotEquivalent);
+  CHECK(r.differs.invariant == "twists");
+  CHECK(r.galois_tried == 0);  // Q(zeta_2) = Q: the identity is the only embedding
+  // Z_5 with R^{ab} = zeta^{ab} vs trivial braiding: R^{11}_2 is gauge invariant and zeta has no rational
+  // conjugate (common practice); both non-mirror conjugates k = 2, 3 are excluded by that invariant, and with the
+  // filter bypassed in the same way by the full test (the gauge test finds R^{11}_2 in the loop).
+  r = compare_models(make_cyclic(5, 1), make_cyclic(5, 0));
+  CHECK(r.verdict == CompareVerdict::kNotEquivalent);
+  CHECK(r.galois_excluded == 2);
+  CHECK(r.galois_tried == 0);
+  // The prefilter is only a shortcut: without it every pair gets the same verdict and k.
+  CompareOptions slow;
+  slow.galois_prefilter = false;
+  const std::pair<Model, Model> pairs[] = {{make_cyclic(5, 1), make_cyclic(5, 0)},
+                                           {make_cyclic(5, 1), make_cyclic(5, 2)},
+                                           {bundled("fibonacci"), bundled("yang_lee")},
+                                           {bundled("ising"), bundled("su2_k2")},
+                                           {bundled("su2_k3"), g}};
+  for (const auto& [x, y] : pairs) {
+    CompareResult fast = compare_models(x, y), full = compare_models(x, y, slow);
+    CHECK(fast.verdict == full.verdict);
+    CHECK(fast.galois_k == full.galois_k);
+    CHECK(full.galois_excluded == 0);
+  }
+  CHECK(compare_models(make_cyclic(5, 1), make_cyclic(5, 2)).verdict == CompareVerdict::kEquivalentToGaloisConjugate);
+  // Fusion rules differ: no conjugate is tried.
+  r = compare_models(bundled("toric_code"), bundled("z4"));
+  CHECK(r.galois_tried == 0);
 }
 
 TEST_CASE("Fibonacci vs Yang-Lee: the dimensions differ (phi vs 1 - phi, a Galois pair)") {
-  CompareResult r = compare_models(bundled("fibonacci"), bundled("yang_lee"));
+  CompareOptions direct;
+  direct.try_galois = false;
+  CompareResult r = compare_models(bundled("fibonacci"), bundled("yang_lee"), direct);
   CHECK(r.verdict == CompareVerdict::kNotEquivalent);
   CHECK(r.differs.invariant == "dimensions");
   // Fibonacci vs Z_3 and vs Ising: label counts / fusion rules.
@@ -132,6 +198,12 @@ TEST_CASE("negative control: a gauge copy with one F entry negated is not equiva
     REQUIRE(done);
     CompareResult r = compare_models(m, g);
     CHECK(r.verdict == CompareVerdict::kNotEquivalent);
+    CHECK(r.galois_tried + r.galois_excluded > 0);
+    // Fibonacci: zeta -> zeta^2, zeta^3 send d_t^2 = phi^2 to (1 - phi)^2, which no label of B has, and (4, -)
+    // conjugates the gauge-invariant R^{tt}_1: those 5 embeddings are excluded by enclosures before the full
+    // test; (1, -) keeps every invariant and is tried (and fails on the loop product).
+    if (cap_name == "fibonacci") CHECK(r.galois_excluded == 5);
+    if (cap_name == "fibonacci") CHECK(r.galois_tried == 1);
     CHECK(r.differs.invariant == "loop product");
     CHECK_FALSE(r.differs.loop.empty());
     CHECK(r.differs.value_b == "-1");
@@ -153,11 +225,26 @@ TEST_CASE("model compare on the command line: exit codes, JSON keys, --out") {
   r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + b);
   CHECK(r.status == 0);
   CHECK(r.out.find("equivalent-to-mirror") != std::string::npos);
-  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + zbtest::source_dir() + "/models/yang_lee.toml --json");
+  const std::string yl = zbtest::source_dir() + "/models/yang_lee.toml";
+  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + yl + " --json --no-galois");
   CHECK(r.status == 1);
   j = nlohmann::json::parse(r.out);
   CHECK(j["verdict"] == "not-equivalent");
   CHECK(j["differs"]["invariant"] == "dimensions");
+  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + yl + " --json");
+  CHECK(r.status == 0);
+  j = nlohmann::json::parse(r.out);
+  CHECK(j["verdict"] == "equivalent-to-galois-conjugate");
+  CHECK(j["galois"]["k"] == 2);
+  CHECK(j["galois"]["signs"] == nlohmann::json::array({1}));
+  CHECK(j["galois_conjugates"]["tried"] == 1);
+  // A conjugate written by model transform --galois passes model check and compares as one.
+  REQUIRE(zbtest::run(zbtest::cli() + " model transform " + fib + " --galois 3 --gauge-seed 2 -o " + b).status == 0);
+  CHECK(zbtest::run(zbtest::cli() + " model check " + b).status == 0);
+  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + b);
+  CHECK(r.status == 0);
+  CHECK(r.out.find("equivalent-to-galois-conjugate") != std::string::npos);
+  CHECK(r.out.find("zeta -> zeta^") != std::string::npos);
   CHECK(zbtest::run(zbtest::cli() + " model compare " + fib + " " + dir + "/missing.toml").status == 2);
 }
 

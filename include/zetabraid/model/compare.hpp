@@ -20,11 +20,20 @@
 
 namespace zb {
 
-enum class CompareVerdict { kEquivalent, kEquivalentToMirror, kNotEquivalent };
+enum class CompareVerdict { kEquivalent, kEquivalentToMirror, kEquivalentToGaloisConjugate, kNotEquivalent };
 
 struct CompareOptions {
   bool try_mirror = true;        ///< also compare B with the conjugate of A when A and B are not equivalent
   long max_relabelings = 20000;  ///< more candidate relabellings than this: ResourceError
+  /// When neither A nor its mirror is equivalent to B: compare B with each Galois conjugate of A
+  /// (transform.hpp, galois_model), one per embedding (k, signs) of A's field, k ascending, then signs. The
+  /// identity is skipped, and the mirror (k = N-1, signs 0) when try_mirror already tried it; so without
+  /// try_mirror the mirror can still be found here, as the conjugate k = N-1.
+  bool try_galois = true;
+  /// Exclude conjugates whose gauge invariants d_a^2, R^{aa}_c provably match no label of B (enclosures) before
+  /// the full test; the verdict is the same without it (tests compare both).
+  bool galois_prefilter = true;
+  long max_galois = 256;  ///< A's field has more embeddings than this: the conjugates are skipped (with a note)
 };
 
 /// One factor of a loop product: (value in B)/(value in A) of an entry, to a power.
@@ -56,12 +65,23 @@ struct CompareResult {
   std::string gauge_note;          ///< when not explicit: which root is needed
   CompareDiff differs;             ///< when not equivalent (from the direct comparison, not the mirror)
   long relabelings_tried = 0;
+  /// For kEquivalentToGaloisConjugate: B is equivalent to galois_model(A, galois_k, galois_signs); relabeling and
+  /// gauge then take that conjugate (labels as A's) to B. galois_signs has one entry +1/-1 per radicand of A.
+  long galois_k = 1;
+  std::vector<int> galois_signs;
+  long galois_tried = 0;     ///< Galois conjugates compared in full
+  /// Conjugates excluded before the full test: the enclosures prove that some label's d_a^2 or R^{aa}_c (gauge
+  /// invariants) match those of no label of B.
+  long galois_excluded = 0;
   std::vector<std::string> notes;
 };
 
-/// Compares A and B exactly (see above). MathError/InputError only for unusable input (e.g. multiplicities).
+/// Compares A and B exactly (see above). A Galois conjugate of A is another solution of the same polynomial
+/// equations (pentagon, hexagon have rational coefficients) and generally another category (e.g. Yang-Lee vs
+/// Fibonacci): the verdict "equivalent-to-galois-conjugate" says so, it is not "equivalent". MathError/InputError only for unusable input (e.g. multiplicities).
 CompareResult compare_models(const Model& a, const Model& b, const CompareOptions& opt = {});
 
-const char* verdict_name(CompareVerdict v);  ///< "equivalent", "equivalent-to-mirror", "not-equivalent"
+/// "equivalent", "equivalent-to-mirror", "equivalent-to-galois-conjugate", "not-equivalent"
+const char* verdict_name(CompareVerdict v);
 
 }  // namespace zb

@@ -48,6 +48,26 @@ void parse_relabeling(const Model& m, const std::string& spec, std::vector<int>*
 /// The complex conjugate ("mirror") model: every F entry and R-symbol conjugated.
 Model mirror_model(const Model& m);
 
+/// The Galois conjugate of m under the embedding (k, signs) of its field L = K(sqrt(d_1), ..., sqrt(d_m)),
+/// K = Q(zeta_N): every coefficient c in K goes to sigma_k(c) (zeta -> zeta^k, gcd(k, N) = 1) and sqrt(d_j) to
+/// (-1)^(bit j of signs) * r_j, r_j the principal root of sigma_k(d_j) (positive, or i times a positive number:
+/// sigma_k(d_j) is real but may be negative) -- the same embedding as Scalar::ball_at(.., k, signs). Because the
+/// d_j are independent modulo squares of K, so are the sigma_k(d_j), and every sign choice is a field embedding
+/// of L into C; the images of F and R therefore satisfy the same pentagon and hexagon equations. The result lives
+/// in a fresh field: conductor N, or lcm(N, 4) when some sigma_k(d_j) < 0 and i is not in K (so that r_j exists),
+/// with the r_j reduced against or adjoined as radicands. The unitarity claim is kept only for the identity and
+/// the mirror (k = +-1, signs = 0). MathError when gcd(k, N) != 1 or signs has a bit at or past m.
+Model galois_model(const Model& m, long k, RadicalMask signs = 0);
+
+/// Every F block F^{abc}_d, read as the square matrix with rows e and columns f in ascending label order, replaced
+/// by its inverse (invert_f_blocks) or its transpose (transpose_f_blocks); R is unchanged. Both are involutions.
+/// The result is generally NOT a consistent model in this project's convention (model.hpp): it is how the same
+/// data look when printed in a convention where F maps the other way or is written with rows and columns
+/// swapped. MathError on a block that is not square or is singular (only for inconsistent input). The unitarity
+/// claim is dropped.
+Model invert_f_blocks(const Model& m);
+Model transpose_f_blocks(const Model& m);
+
 /// A fresh field containing both models' fields: conductor lcm(N_a, N_b), the radicands of a and then of b.
 FieldPtr common_field(const Model& a, const Model& b);
 
