@@ -290,6 +290,10 @@ Scalar operator*(const Scalar& a, const Scalar& b) {
   Scalar r(a.f_);
   if (a.t_.size() == 1 && a.t_.begin()->first == 0 && a.t_.begin()->second.is_one()) return b;
   if (b.t_.size() == 1 && b.t_.begin()->first == 0 && b.t_.begin()->second.is_one()) return a;
+  if (a.t_.size() * b.t_.size() > Scalar::kMaxTermProducts)
+    throw ResourceError(fmt::format("a product of values with {} and {} square-root terms exceeds the limit of {} "
+                                    "term products",
+                                    a.t_.size(), b.t_.size(), Scalar::kMaxTermProducts));
   for (const auto& [ma, ca] : a.t_)
     for (const auto& [mb, cb] : b.t_) {
       Cyclo c = ca * cb;
@@ -304,6 +308,9 @@ Scalar operator*(const Scalar& a, const Scalar& b) {
         if (it->second.is_zero()) r.t_.erase(it);
       }
     }
+  if (r.t_.size() > Scalar::kMaxTerms)
+    throw ResourceError(fmt::format("a value with {} square-root terms exceeds the limit of {} terms", r.t_.size(),
+                                    Scalar::kMaxTerms));
   return r;
 }
 Scalar& Scalar::operator*=(const Scalar& o) { return *this = *this * o; }

@@ -214,11 +214,21 @@ SquareAnswer decide_square(const Cyclo& x, WitnessList& witnesses, size_t max_wi
   // (s/den)^2 = x.
   FmpzT den;
   const Cyclo y = integral_representative(x, den);
+  long phi = x.field()->degree();
+  // Each prime contributes phi(N) witnesses (one per root of Phi_N mod p). For x in a small subfield (a rational
+  // radicand, say) the roots of one prime give the same symbol, so first try one root of each of max_witnesses
+  // distinct primes (prime j's roots are entries j*phi .. j*phi + phi - 1), then the witnesses in order.
+  for (size_t j = 0; j < max_witnesses; ++j) {
+    const Witness& w = witnesses.at(j * static_cast<size_t>(phi) + j % static_cast<size_t>(phi));
+    if (legendre_at(y, w) == -1) {
+      ans.witness = w;
+      return ans;
+    }
+  }
   if (auto w = find_witness(y, witnesses, 0, max_witnesses)) {
     ans.witness = *w;
     return ans;
   }
-  long phi = x.field()->degree();
   const long height = y.size().height;
   if (height > kMaxNormMethodBits / (4 * phi * phi))
     throw ResourceError(fmt::format("deciding whether {} is a square needs the norm method on a polynomial of about "

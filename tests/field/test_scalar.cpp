@@ -101,3 +101,14 @@ TEST_CASE("radicands must be real; negative ones use the principal branch") {
   FieldPtr q = Field::make(1);
   CHECK_THROWS_AS(eval(q, "sqrt(-1)"), ExpressionError);
 }
+
+TEST_CASE("products of sums of many distinct square roots stop at the term limit") {
+  // Found by fuzzing (tests/fuzz-regressions/expression/timeout-*): sums of ~30 independent square roots raised
+  // to powers grow like 2^30 terms. Beyond Scalar::kMaxTerms terms (or kMaxTermProducts products) a product is a
+  // ResourceError, not a hang.
+  FieldPtr f = Field::make(1);
+  std::string sum = "0";
+  for (int p : {2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41, 43, 47, 53, 59, 61, 67, 71})
+    sum += "+sqrt(" + std::to_string(p) + ")";
+  CHECK_THROWS_AS(parse_expression("(" + sum + ")^6", f), ResourceError);
+}

@@ -206,3 +206,17 @@ TEST_CASE("square decisions come with proofs: witnesses for non-squares, verifie
     CHECK((*s.root) * (*s.root) == x * x);
   }
 }
+
+TEST_CASE("a rational non-square in a big cyclotomic field is decided by a witness, not the norm method") {
+  // Found by fuzzing (tests/fuzz-regressions/model/timeout-*): sqrt(2) in Q(zeta_97) took minutes, because every
+  // witness tried came from one prime p with (2|p) = 1. sqrt(2) is not in Q(zeta_97): its only quadratic
+  // subfield is Q(sqrt(97)) (common practice: Q(zeta_p) contains exactly one quadratic field, Q(sqrt(+-p))).
+  FieldPtr f = Field::make(97);
+  Scalar s = parse_expression("sqrt(2)", f);
+  CHECK(f->radicand_count() == 1);
+  CHECK(s * s == Scalar(f, 2));
+  // and sqrt(97) is found inside the field
+  Scalar r = parse_expression("sqrt(97)", f);
+  CHECK(f->radicand_count() == 1);
+  CHECK(r * r == Scalar(f, 97));
+}

@@ -86,6 +86,12 @@ class Field : public std::enable_shared_from_this<Field> {
 /// An element of a Field. Value type.
 class Scalar {
  public:
+  /// Resource limits of products (ResourceError beyond): terms of one value (distinct square-root monomials) and
+  /// term-by-term products in one multiplication. Models use a handful of terms; sums of many distinct square
+  /// roots raised to powers would otherwise grow like 2^(radicands).
+  static constexpr size_t kMaxTerms = 1u << 14;
+  static constexpr size_t kMaxTermProducts = 1u << 22;
+
   explicit Scalar(FieldPtr f);             ///< zero
   Scalar(FieldPtr f, long v);              ///< integer
   Scalar(FieldPtr f, const Cyclo& c);      ///< element of the base field
