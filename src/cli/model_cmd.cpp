@@ -188,7 +188,7 @@ void add_model_commands(CLI::App& app, Action& action) {
         "compare", "decide exactly whether two model files are the same up to gauge and relabelling (or mirror)");
     struct Opts {
       std::string a, b, out;
-      bool json = false, no_mirror = false, no_galois = false;
+      bool json = false, no_mirror = false, galois = false;
     };
     auto o = std::make_shared<Opts>();
     cmd->add_option("a", o->a, "model file A")->required();
@@ -196,9 +196,9 @@ void add_model_commands(CLI::App& app, Action& action) {
     cmd->add_flag("--json", o->json, "one JSON object: verdict, relabeling, gauge, differs");
     cmd->add_option("--out", o->out, "also write the JSON result to this file");
     cmd->add_flag("--no-mirror", o->no_mirror, "do not compare B with the mirror (complex conjugate) of A");
-    cmd->add_flag("--no-galois", o->no_galois, "do not compare B with the Galois conjugates of A");
+    cmd->add_flag("--galois", o->galois, "when not equivalent (nor mirror): also compare B with every Galois conjugate of A");
     cmd->callback([o, &action] {
-      action = [o] { return run_compare(o->a, o->b, o->json, !o->no_mirror, !o->no_galois, o->out); };
+      action = [o] { return run_compare(o->a, o->b, o->json, !o->no_mirror, o->galois, o->out); };
     });
   }
   {

@@ -13,6 +13,14 @@
 using namespace zb;
 
 namespace {
+// These tests exercise the Galois search, which the library and the CLI run only on request (--galois).
+CompareOptions with_galois(CompareOptions o = {}) {
+  o.try_galois = true;
+  return o;
+}
+}  // namespace
+
+namespace {
 
 Model bundled(const std::string& name) { return load_model(zbtest::source_dir() + "/models/" + name + ".toml"); }
 
@@ -42,7 +50,7 @@ TEST_CASE("random gauge copies compare equivalent, with an explicit gauge that m
       CAPTURE(seed);
       Model m = bundled(name);
       Model g = apply_gauge(m, random_gauge(m, seed));
-      CompareResult r = compare_models(m, g);
+      CompareResult r = compare_models(m, g, with_galois());
       CHECK(r.verdict == CompareVerdict::kEquivalent);
       CHECK(r.gauge_explicit);
       CHECK(keeps_fusion(m, g, r.relabeling));
@@ -56,7 +64,7 @@ TEST_CASE("relabelled copies: Z_3 with 1 <-> 2, three_fermion permutations, with
   std::vector<std::string> names;
   parse_relabeling(z3, "1:2,2:1", &perm, &names);
   Model s = apply_gauge(relabel_model(z3, perm, names), random_gauge(z3, 3));
-  CompareResult r = compare_models(z3, s);
+  CompareResult r = compare_models(z3, s, with_galois());
   CHECK(r.verdict == CompareVerdict::kEquivalent);
   CHECK(keeps_fusion(z3, s, r.relabeling));
   // Three fermions: S_3 permutes f1, f2, f3 (common practice: the three fermions are exchanged by the
@@ -67,7 +75,7 @@ TEST_CASE("relabelled copies: Z_3 with 1 <-> 2, three_fermion permutations, with
     CAPTURE(cap_spec);
     parse_relabeling(tf, spec, &perm, &names);
     Model t = apply_gauge(relabel_model(tf, perm, names), random_gauge(tf, 9));
-    CompareResult q = compare_models(tf, t);
+    CompareResult q = compare_models(tf, t, with_galois());
     CHECK(q.verdict == CompareVerdict::kEquivalent);
     CHECK(keeps_fusion(tf, t, q.relabeling));
   }
@@ -77,7 +85,7 @@ TEST_CASE("mirror copies: Fibonacci's mirror is not equivalent to it, the twists
   // Fact of the trade (from memory): theta_t = exp(4 pi i/5) for Fibonacci; the mirror has the conjugate twist.
   Model fib = bundled("fibonacci");
   Model c = apply_gauge(mirror_model(fib), random_gauge(fib, 11));
-  CompareResult r = compare_models(fib, c);
+  CompareResult r = compare_models(fib, c, with_galois());
   CHECK(r.verdict == CompareVerdict::kEquivalentToMirror);
   CompareOptions no_mirror;
   no_mirror.try_mirror = false;
@@ -91,10 +99,10 @@ TEST_CASE("mirror copies: Fibonacci's mirror is not equivalent to it, the twists
   CHECK(d.galois_k == 4);
   // Toric code is its own mirror (all data real): equivalent directly.
   Model tc = bundled("toric_code");
-  CHECK(compare_models(tc, mirror_model(tc)).verdict == CompareVerdict::kEquivalent);
+  CHECK(compare_models(tc, mirror_model(tc), with_galois()).verdict == CompareVerdict::kEquivalent);
   // Ising's mirror: theta_sigma = exp(-pi i/8) is the twist of the nu = 15 model, not of Ising (nu = 1).
   Model is = bundled("ising");
-  CHECK(compare_models(is, mirror_model(is)).verdict == CompareVerdict::kEquivalentToMirror);
+  CHECK(compare_models(is, mirror_model(is), with_galois()).verdict == CompareVerdict::kEquivalentToMirror);
 }
 
 TEST_CASE("Ising vs SU(2)_2: same fusion rules, different Frobenius-Schur indicator of the spin-1/2 label") {
@@ -114,7 +122,7 @@ TEST_CASE("Ising vs SU(2)_2: same fusion rules, different Frobenius-Schur indica
 TEST_CASE("Galois conjugates: Fibonacci vs Yang-Lee, Ising vs SU(2)_2, conjugates made by galois_model") {
   // Common practice: Yang-Lee is the Galois conjugate of Fibonacci, phi -> -1/phi; yang_lee.toml was made with
   // zeta -> zeta^2 of Q(zeta_5), so k = 2 (the first k tried) with the positive root is expected.
-  CompareResult r = compare_models(bundled("fibonacci"), bundled("yang_lee"));
+  CompareResult r = compare_models(bundled("fibonacci"), bundled("yang_lee"), with_galois());
   CHECK(r.verdict == CompareVerdict::kEquivalentToGaloisConjugate);
   CHECK(r.galois_k == 2);
   CHECK(r.galois_signs == std::vector<int>{1});
@@ -124,26 +132,26 @@ TEST_CASE("Galois conjugates: Fibonacci vs Yang-Lee, Ising vs SU(2)_2, conjugate
   // R^{aa}_c are gauge invariant (u^{aa}_c/u^{aa}_c = 1), so a conjugate zeta -> zeta^k must map Ising's
   // R^{sigma sigma}_1 = zeta^-1, R^{sigma sigma}_psi = zeta^3 (ising.toml, zeta = exp(2 pi i/16)) onto su2_k2.toml's
   // zeta^5, zeta: -k = 5 and 3k = 1 mod 16 force k = 11. Common practice: SU(2)_2 is a Galois conjugate of Ising.
-  r = compare_models(bundled("ising"), bundled("su2_k2"));
+  r = compare_models(bundled("ising"), bundled("su2_k2"), with_galois());
   CHECK(r.verdict == CompareVerdict::kEquivalentToGaloisConjugate);
   CHECK(r.galois_k == 11);
   // A conjugate produced by galois_model, then gauged and relabelled, is found again.
   Model m = bundled("su2_k3");
   Model g = galois_model(m, 3, 0);
   g = apply_gauge(g, random_gauge(g, 8));
-  CompareResult q = compare_models(m, g);
+  CompareResult q = compare_models(m, g, with_galois());
   CHECK(q.verdict == CompareVerdict::kEquivalentToGaloisConjugate);
   CHECK(check_model(galois_model(m, q.galois_k, 0)).ok);
   // Negative controls: rational data are fixed by every conjugation (toric code vs three fermions differ in the
   // twists), and the F-negated copies of the next test case stay not equivalent after every conjugate was tried.
-  r = compare_models(bundled("toric_code"), bundled("three_fermion"));
+  r = compare_models(bundled("toric_code"), bundled("three_fermion"), with_galois());
   CHECK(r.verdict == CompareVerdict::kNotEquivalent);
   CHECK(r.differs.invariant == "twists");
   CHECK(r.galois_tried == 0);  // Q(zeta_2) = Q: the identity is the only embedding
   // Z_5 with R^{ab} = zeta^{ab} vs trivial braiding: R^{11}_2 is gauge invariant and zeta has no rational
   // conjugate (common practice); both non-mirror conjugates k = 2, 3 are excluded by that invariant, and with the
   // filter bypassed in the same way by the full test (the gauge test finds R^{11}_2 in the loop).
-  r = compare_models(make_cyclic(5, 1), make_cyclic(5, 0));
+  r = compare_models(make_cyclic(5, 1), make_cyclic(5, 0), with_galois());
   CHECK(r.verdict == CompareVerdict::kNotEquivalent);
   CHECK(r.galois_excluded == 2);
   CHECK(r.galois_tried == 0);
@@ -156,14 +164,14 @@ TEST_CASE("Galois conjugates: Fibonacci vs Yang-Lee, Ising vs SU(2)_2, conjugate
                                            {bundled("ising"), bundled("su2_k2")},
                                            {bundled("su2_k3"), g}};
   for (const auto& [x, y] : pairs) {
-    CompareResult fast = compare_models(x, y), full = compare_models(x, y, slow);
+    CompareResult fast = compare_models(x, y, with_galois()), full = compare_models(x, y, with_galois(slow));
     CHECK(fast.verdict == full.verdict);
     CHECK(fast.galois_k == full.galois_k);
     CHECK(full.galois_excluded == 0);
   }
-  CHECK(compare_models(make_cyclic(5, 1), make_cyclic(5, 2)).verdict == CompareVerdict::kEquivalentToGaloisConjugate);
+  CHECK(compare_models(make_cyclic(5, 1), make_cyclic(5, 2), with_galois()).verdict == CompareVerdict::kEquivalentToGaloisConjugate);
   // Fusion rules differ: no conjugate is tried.
-  r = compare_models(bundled("toric_code"), bundled("z4"));
+  r = compare_models(bundled("toric_code"), bundled("z4"), with_galois());
   CHECK(r.galois_tried == 0);
 }
 
@@ -174,10 +182,10 @@ TEST_CASE("Fibonacci vs Yang-Lee: the dimensions differ (phi vs 1 - phi, a Galoi
   CHECK(r.verdict == CompareVerdict::kNotEquivalent);
   CHECK(r.differs.invariant == "dimensions");
   // Fibonacci vs Z_3 and vs Ising: label counts / fusion rules.
-  CHECK(compare_models(bundled("fibonacci"), bundled("ising")).differs.invariant == "label count");
-  CHECK(compare_models(bundled("toric_code"), bundled("z4")).differs.invariant == "fusion rules");
+  CHECK(compare_models(bundled("fibonacci"), bundled("ising"), with_galois()).differs.invariant == "label count");
+  CHECK(compare_models(bundled("toric_code"), bundled("z4"), with_galois()).differs.invariant == "fusion rules");
   // Toric code vs three fermions: same fusion rules (Z_2 x Z_2), twists (1,1,1,-1) vs (1,-1,-1,-1).
-  CHECK(compare_models(bundled("toric_code"), bundled("three_fermion")).differs.invariant == "twists");
+  CHECK(compare_models(bundled("toric_code"), bundled("three_fermion"), with_galois()).differs.invariant == "twists");
 }
 
 TEST_CASE("negative control: a gauge copy with one F entry negated is not equivalent, a loop product is named") {
@@ -196,7 +204,7 @@ TEST_CASE("negative control: a gauge copy with one F entry negated is not equiva
       done = true;
     });
     REQUIRE(done);
-    CompareResult r = compare_models(m, g);
+    CompareResult r = compare_models(m, g, with_galois());
     CHECK(r.verdict == CompareVerdict::kNotEquivalent);
     CHECK(r.galois_tried + r.galois_excluded > 0);
     // Fibonacci: zeta -> zeta^2, zeta^3 send d_t^2 = phi^2 to (1 - phi)^2, which no label of B has, and (4, -)
@@ -226,12 +234,12 @@ TEST_CASE("model compare on the command line: exit codes, JSON keys, --out") {
   CHECK(r.status == 0);
   CHECK(r.out.find("equivalent-to-mirror") != std::string::npos);
   const std::string yl = zbtest::source_dir() + "/models/yang_lee.toml";
-  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + yl + " --json --no-galois");
+  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + yl + " --json");
   CHECK(r.status == 1);
   j = nlohmann::json::parse(r.out);
   CHECK(j["verdict"] == "not-equivalent");
   CHECK(j["differs"]["invariant"] == "dimensions");
-  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + yl + " --json");
+  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + yl + " --json --galois");
   CHECK(r.status == 0);
   j = nlohmann::json::parse(r.out);
   CHECK(j["verdict"] == "equivalent-to-galois-conjugate");
@@ -242,6 +250,8 @@ TEST_CASE("model compare on the command line: exit codes, JSON keys, --out") {
   REQUIRE(zbtest::run(zbtest::cli() + " model transform " + fib + " --galois 3 --gauge-seed 2 -o " + b).status == 0);
   CHECK(zbtest::run(zbtest::cli() + " model check " + b).status == 0);
   r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + b);
+  CHECK(r.status == 1);  // without --galois: a conjugate is a different model
+  r = zbtest::run(zbtest::cli() + " model compare " + fib + " " + b + " --galois");
   CHECK(r.status == 0);
   CHECK(r.out.find("equivalent-to-galois-conjugate") != std::string::npos);
   CHECK(r.out.find("zeta -> zeta^") != std::string::npos);
@@ -253,7 +263,7 @@ TEST_CASE("a gauge that needs a root outside the field: still equivalent, the ro
   // not a positive real of the base field; over C the square root exists, so the models are equivalent.
   Model m = bundled("su2_k5");
   Model g = apply_gauge(m, random_gauge(m, 3));
-  CompareResult r = compare_models(m, g);
+  CompareResult r = compare_models(m, g, with_galois());
   CHECK(r.verdict == CompareVerdict::kEquivalent);
   if (!r.gauge_explicit) CHECK(r.gauge_note.find("square root") != std::string::npos);
 }
@@ -267,7 +277,7 @@ TEST_CASE("negative control: an F entry set to zero is a zero-pattern difference
   for (const auto& [k, v] : g.f_symbols())
     if (!(k == std::array<int, 6>{1, 1, 1, 1, 0, 0})) h.set_f_symbol(k[0], k[1], k[2], k[3], k[4], k[5], v);
   for (const auto& [k, v] : g.r_symbols()) h.set_r_symbol(k[0], k[1], k[2], v);
-  CompareResult r = compare_models(m, h);
+  CompareResult r = compare_models(m, h, with_galois());
   CHECK(r.verdict == CompareVerdict::kNotEquivalent);
   CHECK(r.differs.invariant == "zero pattern");
   CHECK(r.differs.value_b == "0");

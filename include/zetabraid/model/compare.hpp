@@ -29,7 +29,7 @@ struct CompareOptions {
   /// (transform.hpp, galois_model), one per embedding (k, signs) of A's field, k ascending, then signs. The
   /// identity is skipped, and the mirror (k = N-1, signs 0) when try_mirror already tried it; so without
   /// try_mirror the mirror can still be found here, as the conjugate k = N-1.
-  bool try_galois = true;
+  bool try_galois = false;  ///< off by default: a Galois conjugate is a different category (CLI: --galois)
   /// Exclude conjugates whose gauge invariants d_a^2, R^{aa}_c provably match no label of B (enclosures) before
   /// the full test; the verdict is the same without it (tests compare both).
   bool galois_prefilter = true;
