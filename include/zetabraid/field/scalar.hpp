@@ -89,8 +89,8 @@ class Scalar {
   /// Resource limits of products (ResourceError beyond): terms of one value (distinct square-root monomials) and
   /// term-by-term products in one multiplication. Models use a handful of terms; sums of many distinct square
   /// roots raised to powers would otherwise grow like 2^(radicands).
-  static constexpr size_t kMaxTerms = 1u << 14;
-  static constexpr size_t kMaxTermProducts = 1u << 22;
+  static constexpr size_t kMaxTerms = 1u << 12;
+  static constexpr size_t kMaxTermProducts = 1u << 18;
 
   explicit Scalar(FieldPtr f);             ///< zero
   Scalar(FieldPtr f, long v);              ///< integer
